@@ -1,0 +1,173 @@
+"""Axle loads of a two-axle rig on a uniform slope, and the angles where they change character.
+
+Planar, quasi-static, rigid body; both contacts on one plane. Slope > 0 is nose up.
+
+References
+----------
+.. [1] T. D. Gillespie, *Fundamentals of Vehicle Dynamics*, SAE, 1992, ch. 2 (loads on axles,
+   grades).
+.. [2] R. N. Jazar, *Vehicle Dynamics: Theory and Application*, Springer, 2008, ch. 2 (vehicle
+   on an inclined road, tilting angle).
+.. [3] NHTSA, static stability factor ``SSF = T/(2h)``, 68 FR 59250, 2003.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def axle_loads_g(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, slope_deg, accel_g=0.0):
+    """Front and rear normal force on a uniform slope.
+
+    Parameters
+    ----------
+    weight_g : float
+        Rig weight. [gf]
+    wheelbase_mm : float
+        Front to rear axle. [mm]
+    cg_from_rear_mm : float
+        CG distance ahead of the rear axle, ``b``. [mm]
+    cg_height_mm : float
+        CG height above the ground plane, ``h``. [mm]
+    slope_deg : array_like
+        Slope, nose up positive. [deg]
+    accel_g : float or array_like, default 0
+        Acceleration along the slope (throttle punch). [g]
+
+    Returns
+    -------
+    front_g, rear_g : ndarray
+        Normal forces. [gf] Values past a lift angle are the statics values (negative: that axle
+        would have to be pulled down); the caller decides what a lift means.
+
+    Notes
+    -----
+    Moments about the rear contact [1]_, [2]_::
+
+        N_f = W (b cos θ − h sin θ − h a_x) / L
+        N_r = W cos θ − N_f
+    """
+    th = np.radians(np.asarray(slope_deg, dtype=float))
+    cos_t, sin_t = np.cos(th), np.sin(th)
+    front = weight_g * (cg_from_rear_mm * cos_t - cg_height_mm * (sin_t + accel_g)) / wheelbase_mm
+    return front, weight_g * cos_t - front
+
+
+def solve_cos_sin(p, q, c):
+    """All angles in (−90°, 90°) where ``p cos θ + q sin θ + c = 0``.
+
+    Parameters
+    ----------
+    p, q, c : float
+        Coefficients (any consistent unit).
+
+    Returns
+    -------
+    list of float
+        Roots, ascending. [deg] Empty when there is none in the open interval or ``p = q = 0``.
+
+    Notes
+    -----
+    ``p cos θ + q sin θ = R cos(θ − ψ)`` with ``R = hypot(p, q)``, ``ψ = atan2(q, p)``; so
+    ``θ = ψ ± acos(−c/R)``. Exact: no small-angle form, no iteration.
+    """
+    r = float(np.hypot(p, q))
+    if r == 0.0 or abs(c) > r:
+        return []
+    psi = np.arctan2(q, p)
+    d = np.arccos(np.clip(-c / r, -1.0, 1.0))
+    out = []
+    for t in (psi - d, psi + d):
+        t = (t + np.pi) % (2 * np.pi) - np.pi
+        deg = float(np.degrees(t))
+        if -90.0 < deg < 90.0 and all(abs(deg - o) > 1e-12 for o in out):
+            out.append(deg)
+    return sorted(out)
+
+
+def _root_near(p, q, c, guess_deg):
+    """The root of ``p cos θ + q sin θ + c`` nearest `guess_deg`, or NaN when there is none."""
+    roots = solve_cos_sin(p, q, c)
+    if not roots:
+        return float("nan")
+    return min(roots, key=lambda r: abs(r - guess_deg))
+
+
+def balance_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0):
+    """Slope where front and rear normal forces are equal.
+
+    Returns
+    -------
+    float
+        [deg] Negative when the rig is rear-biased; NaN when none lies in (−90°, 90°).
+
+    Notes
+    -----
+    ``tan θ = (b − L/2)/h`` for ``a_x = 0`` [1]_; otherwise the root of
+    ``(2b − L) cos θ − 2h sin θ − 2h a_x = 0`` nearest it.
+    """
+    b, h, half = cg_from_rear_mm, cg_height_mm, wheelbase_mm / 2.0
+    guess = float(np.degrees(np.arctan2(b - half, h)))
+    if accel_g == 0:
+        return guess
+    return _root_near(2 * (b - half), -2 * h, -2 * h * accel_g, guess)
+
+
+def front_lift_angle_deg(cg_from_rear_mm, cg_height_mm, accel_g=0.0):
+    """Climbing slope where the front normal force reaches zero (the rig tips over backwards).
+
+    Returns
+    -------
+    float
+        [deg] NaN when none lies in (−90°, 90°).
+
+    Notes
+    -----
+    ``tan θ = b/h`` for ``a_x = 0`` [1]_, [2]_; otherwise the root of
+    ``b cos θ − h sin θ − h a_x = 0`` nearest it.
+    """
+    b, h = cg_from_rear_mm, cg_height_mm
+    guess = float(np.degrees(np.arctan2(b, h)))
+    if accel_g == 0:
+        return guess
+    return _root_near(b, -h, -h * accel_g, guess)
+
+
+def rear_lift_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0):
+    """Descending slope where the rear normal force reaches zero (the rig tips over its nose).
+
+    Returns
+    -------
+    float
+        [deg], negative. NaN when none lies in (−90°, 90°).
+
+    Notes
+    -----
+    ``tan θ = −a/h`` with ``a = L − b`` for ``a_x = 0`` [1]_; otherwise the root of
+    ``a cos θ + h sin θ + h a_x = 0`` nearest it.
+    """
+    a, h = wheelbase_mm - cg_from_rear_mm, cg_height_mm
+    guess = float(np.degrees(np.arctan2(-a, h)))
+    if accel_g == 0:
+        return guess
+    return _root_near(a, h, h * accel_g, guess)
+
+
+def sidehill_roll_angle_deg(track_mm, cg_height_mm):
+    """Side slope where the uphill wheels unload (static rollover threshold).
+
+    Notes
+    -----
+    ``tan φ = (T/2)/h``, the static stability factor ``SSF = T/(2h)`` [3]_.
+    """
+    return float(np.degrees(np.arctan2(track_mm / 2.0, cg_height_mm)))
+
+
+def sidehill_slide_angle_deg(mu_static):
+    """Side slope where the tyres start to slide sideways: ``tan φ = μ_s``."""
+    return float(np.degrees(np.arctan(mu_static)))
+
+
+def static_stability_factor(track_mm, cg_height_mm):
+    """NHTSA static stability factor ``T/(2h)`` [3]_. [-]"""
+    return track_mm / (2.0 * cg_height_mm)

@@ -1,0 +1,82 @@
+"""`slopetune` command line: sub-commands for scripts, the tuner when none is given.
+
+Exit codes: 0 done, 1 a result the user asked to be told about, 2 bad input (one line on stderr,
+no traceback).
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+from engine import SetupError
+
+from .commands import COMMANDS
+
+INTRO = """\
+Setup tuner for scale rock crawlers: axle loads, overdrive wind-up and which axle lets go.
+
+  slopetune [FILE]          open the full-screen tuner (no FILE: a bundled demo, unsaved)
+  slopetune COMMAND --help  help on one command
+
+Units: grams (forces in grams-force), millimetres, degrees. Slope > 0 is nose up (climbing),
+< 0 nose down. Forces along the ground are positive up-slope.
+The results are a static model: check on the bench, hands clear of the driveline.
+"""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="slopetune", description=INTRO, formatter_class=argparse.RawDescriptionHelpFormatter
+    )
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        try:
+            module = importlib.import_module(f"tui.commands.{name}")
+        except ModuleNotFoundError as exc:
+            if exc.name != f"tui.commands.{name}":
+                raise
+            continue  # a command not built yet is simply not offered
+        module.register(sub)
+    return parser
+
+
+def _tuner_args(argv):
+    """Arguments of the tuner when the first word is not a sub-command, else None."""
+    if argv and (argv[0] in COMMANDS or argv[0] in ("-h", "--help")):
+        return None
+    parser = argparse.ArgumentParser(prog="slopetune", add_help=False)
+    parser.add_argument("file", nargs="?")
+    parser.add_argument("--ascii", action="store_true")
+    parser.add_argument("--baseline")
+    return parser.parse_args(argv)
+
+
+def main(argv=None) -> int:
+    argv = sys.argv[1:] if argv is None else list(argv)
+    tuner = _tuner_args(argv)
+    if tuner is not None:
+        try:
+            from .app_main import run_tuner
+        except ModuleNotFoundError as exc:
+            if exc.name != "tui.app_main":
+                raise
+            print("slopetune: the tuner is not built yet; try `slopetune report FILE`", file=sys.stderr)
+            return 2
+        return run_tuner(tuner)
+    args = build_parser().parse_args(argv)
+    if not getattr(args, "func", None):
+        build_parser().print_help()
+        return 2
+    try:
+        return int(args.func(args) or 0)
+    except SetupError as exc:
+        print(f"slopetune: {exc}", file=sys.stderr)
+        return 2
+    except BrokenPipeError:  # `slopetune report x | head`
+        return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
