@@ -1,0 +1,160 @@
+"""`slopetune report FILE`: the effective rig, named angles, verdict and a load table."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+
+import numpy as np
+
+from engine import SetupError, analyse, load_setup
+
+from ..verdict import verdict
+
+HELP = """\
+Analyse one setup over a range of slopes.
+
+Units: weights and forces in grams(-force), lengths in mm, angles in degrees.
+Slope > 0 is nose up (climbing), < 0 nose down. Forces along the ground are positive
+up-slope; a negative reserve means that axle is short of grip by that much.
+States: none (nothing slips), front / rear (that axle slips, the other grips),
+both (the rig cannot hold the grade), lifted (an axle is off the ground).
+A static model: check on the bench, hands clear of the driveline.
+"""
+
+MAX_ROWS = 100_000
+
+
+def register(sub) -> None:
+    p = sub.add_parser("report", help="loads, traction and named angles of one setup", description=HELP,
+                       formatter_class=__import__("argparse").RawDescriptionHelpFormatter)
+    p.add_argument("file", help="setup file (TOML, format 1)")
+    p.add_argument("--json", action="store_true", help="one JSON object on stdout")
+    p.add_argument("--from", dest="start", type=float, default=0.0, metavar="DEG", help="first slope [deg] (0)")
+    p.add_argument("--to", dest="stop", type=float, default=90.0, metavar="DEG", help="last slope, inclusive [deg] (90)")
+    p.add_argument("--step", type=float, default=1.0, metavar="DEG", help="slope step [deg] (1)")
+    p.add_argument("--accel", type=float, default=None, metavar="G",
+                   help="throttle acceleration along the slope [g] (the file's terrain.accel_g)")
+    p.add_argument("--load", choices=("climb", "none"), default=None,
+                   help="climb: tyres carry a steady climb; none: coasting/creeping (the file's terrain.load)")
+    p.set_defaults(func=run)
+
+
+def slope_range(start: float, stop: float, step: float) -> np.ndarray:
+    """Slopes from `start` to `stop` inclusive; SetupError naming the option when impossible."""
+    for name, v in (("--from", start), ("--to", stop), ("--step", step)):
+        if not math.isfinite(v):
+            raise SetupError(f"{name} {v}: must be a finite number of degrees", "command line")
+    if not -90.0 <= start <= 90.0 or not -90.0 <= stop <= 90.0:
+        raise SetupError(f"--from {start:g} --to {stop:g}: slopes must lie within -90 to 90 degrees", "command line")
+    if step <= 0:
+        raise SetupError(f"--step {step:g}: must be > 0 degrees", "command line")
+    if stop < start:
+        raise SetupError(f"--from {start:g} --to {stop:g}: --to must not be below --from", "command line")
+    n = int(math.floor((stop - start) / step + 1e-9)) + 1
+    if n > MAX_ROWS:
+        raise SetupError(f"--step {step:g}: gives {n} rows; at most {MAX_ROWS}", "command line")
+    slopes = start + step * np.arange(n)
+    if stop - slopes[-1] > 1e-9 * max(1.0, abs(stop)):
+        slopes = np.append(slopes, stop)
+    return np.clip(slopes, -90.0, 90.0)
+
+
+def _num(x, digits=4):
+    return None if x is None or not math.isfinite(x) else round(float(x), digits)
+
+
+def report_dict(a) -> dict:
+    """The report as plain JSON-ready data (documented in the README)."""
+    r, od, s = a.rig, a.overdrive, a.sweep
+    t = s.traction
+    rows = []
+    for i, slope in enumerate(s.slope_deg):
+        rows.append({
+            "slope_deg": _num(slope), "front_normal_g": _num(s.front_normal_g[i], 3),
+            "rear_normal_g": _num(s.rear_normal_g[i], 3), "lifted": s.lifted[i],
+            "required_g": _num(s.required_g[i], 3), "front_force_g": _num(t.front_force_g[i], 3),
+            "rear_force_g": _num(t.rear_force_g[i], 3), "windup_g": _num(t.windup_g[i], 3),
+            "reserve_g": _num(t.reserve_g[i], 3), "slipping": s.slipping[i],
+        })
+    return {
+        "schema": 1,
+        "name": a.setup.name,
+        "load": a.load,
+        "accel_g": a.accel_g,
+        "rig": {"mass_g": _num(r.mass_g, 3), "wheelbase_mm": _num(r.wheelbase_mm, 3),
+                "front_bias_pct": _num(r.front_bias_pct), "cg_height_mm": _num(r.cg_height_mm, 3),
+                "cg_from_rear_mm": _num(r.cg_from_rear_mm, 3), "track_mm": _num(r.track_mm, 3)},
+        "overdrive": {"gear_pct": _num(od.gear_pct), "effective_pct": _num(od.effective_pct),
+                      "pct_of_front": _num(od.pct_of_front), "pct_difference": _num(od.pct_difference),
+                      "overdriven_axle": od.overdriven_axle, "turn_match_steer_deg": _num(od.turn_match_steer_deg)},
+        "angles_deg": {k: _num(v) for k, v in a.angles_deg.items()},
+        "max_grade_limit": a.max_grade_limit,
+        "sweep": rows,
+    }
+
+
+def _fmt(x, width=8, digits=0):
+    if x is None or not math.isfinite(x):
+        return f"{'-':>{width}}"
+    return f"{round(float(x), digits) + 0.0:>{width}.{digits}f}"  # + 0.0: no "-0"
+
+
+def report_text(a) -> str:
+    r, od, ang = a.rig, a.overdrive, a.angles_deg
+    out = [f"{a.setup.name}"]
+    out.append(f"Rig (with ballast): {r.mass_g:.0f} g, wheelbase {r.wheelbase_mm:g} mm, "
+               f"front bias {r.front_bias_pct:.1f} %,")
+    out.append(f"  CG {r.cg_from_rear_mm:.1f} mm ahead of the rear axle, {r.cg_height_mm:.1f} mm high, "
+               f"track {r.track_mm:g} mm")
+    steer = "-" if od.turn_match_steer_deg is None else f"{od.turn_match_steer_deg:.1f} deg"
+    out.append(f"Overdrive: gears {od.gear_pct:+.3f} %, effective {od.effective_pct:+.3f} % "
+               f"({od.pct_of_front:+.3f} % of the front, {od.pct_difference:.3f} % difference);")
+    out.append(f"  overdriven axle: {od.overdriven_axle or 'none'}; matches a turn at {steer} of steer")
+    out.append("")
+    out.append("Angles [deg]:")
+
+    def line(label, key):
+        v = ang[key]
+        return f"  {label:<32}{'-' if v is None else f'{v:7.2f}'}"
+
+    for label, key in (("balance (front = rear load)", "balance"), ("front lift (climbing)", "front_lift"),
+                       ("rear lift (descending)", "rear_lift"), ("sidehill roll", "sidehill_roll"),
+                       ("sidehill slide", "sidehill_slide"), ("handover (steady climb)", "handover"),
+                       ("handover (no load)", "handover_no_load")):
+        out.append(line(label, key))
+    out.append(line(f"max grade (ends by {a.max_grade_limit})", "max_grade"))
+    out.append("")
+    out.append(f"Verdict at the setup's slope ({a.setup.terrain.slope_deg:g} deg):")
+    for v in verdict(a, ascii_only=True):
+        out.append(f"  {v.text}")
+    out.append("")
+    load = "steady climb" if a.load == "climb" else "no load"
+    out.append(f"Load table ({load}; forces in g, + up-slope):")
+    out.append(f"{'slope':>6} {'N front':>8} {'N rear':>8} {'needed':>8} {'F front':>8} {'F rear':>8}"
+               f" {'wind-up':>8} {'reserve':>8}  state")
+    s, t = a.sweep, a.sweep.traction
+    for i, slope in enumerate(s.slope_deg):
+        out.append(f"{slope:>6.1f} {_fmt(s.front_normal_g[i])} {_fmt(s.rear_normal_g[i])} {_fmt(s.required_g[i])}"
+                   f" {_fmt(t.front_force_g[i])} {_fmt(t.rear_force_g[i])} {_fmt(t.windup_g[i])}"
+                   f" {_fmt(t.reserve_g[i])}  {s.slipping[i]}")
+    out.append("")
+    out.append("Static model: driveline wind-up loads gears, shafts and motors. Check on the bench, hands clear.")
+    return "\n".join(out)
+
+
+def run(args) -> int:
+    loaded = load_setup(args.file)
+    for w in loaded.warnings:
+        print(f"slopetune: warning: {w}", file=sys.stderr)
+    if args.accel is not None and not (math.isfinite(args.accel) and -2.0 <= args.accel <= 2.0):
+        raise SetupError(f"--accel {args.accel:g}: must be a number from -2 to 2 [g]", "command line")
+    slopes = slope_range(args.start, args.stop, args.step)
+    a = analyse(loaded.setup, slopes, accel_g=args.accel, load=args.load)
+    if args.json:
+        json.dump(report_dict(a), sys.stdout, indent=1, allow_nan=False)
+        sys.stdout.write("\n")
+    else:
+        print(report_text(a))
+    return 0
