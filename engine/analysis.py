@@ -134,43 +134,34 @@ class _Model:
             return msr * nr - msf * nf - f
         return msf * nf - msr * nr - f
 
-    def boundary_functions(self):
-        """Every function whose zeros can separate two traction states (all of cos/sin/1 form)."""
+    def boundary_weights(self):
+        """(α, β, γ) of every function ``α N_f + β N_r + γ F_req`` whose zeros can separate two
+        traction states: lift, which axle slips first, and each axle holding what the other leaves."""
         (msf, mkf), (msr, mkr) = self.mu_f, self.mu_r
-
-        def parts(t):
-            nf, nr = self.loads(t)
-            return nf, nr, self.required(t)
-
-        fns = [
-            lambda t: parts(t)[0],
-            lambda t: parts(t)[1],
-            lambda t: msf * parts(t)[0] - msr * parts(t)[1] - parts(t)[2],
-            lambda t: msr * parts(t)[1] - msf * parts(t)[0] - parts(t)[2],
-        ]
-        for ms_a, mk_a, ia, ms_b, ib in ((msf, mkf, 0, msr, 1), (msr, mkr, 1, msf, 0)):
-            for s in (1.0, -1.0):
-                # axle b holding what axle a leaves when a slips either way
-                fns.append(lambda t, ms_a=ms_a, mk_a=mk_a, ia=ia, ms_b=ms_b, ib=ib, s=s: (
-                    ms_b * parts(t)[ib] - s * (parts(t)[2] - mk_a * parts(t)[ia])))
-                fns.append(lambda t, ms_a=ms_a, mk_a=mk_a, ia=ia, ms_b=ms_b, ib=ib, s=s: (
-                    ms_b * parts(t)[ib] - s * (parts(t)[2] + mk_a * parts(t)[ia])))
+        out = [(1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (msf, -msr, -1.0), (-msf, msr, -1.0)]
         for s in (1.0, -1.0):
-            fns.append(lambda t, s=s: msf * parts(t)[0] + msr * parts(t)[1] - s * parts(t)[2])
-        return fns
+            out += [
+                (s * mkf, msr, -s), (-s * mkf, msr, -s),  # rear holds what the slipping front leaves
+                (msf, s * mkr, -s), (msf, -s * mkr, -s),  # front holds what the slipping rear leaves
+                (msf, msr, -s),  # no overdrive: both together
+            ]
+        return out
+
+    def trig_coefficients(self):
+        """(p, q, c) of N_f, N_r and F_req, each ``p cos θ + q sin θ + c``, from 0°, 90°, 180°."""
+        t = np.array([0.0, 90.0, 180.0])
+        nf, nr = self.loads(t)
+        rows = np.array([nf, nr, self.required(t)])
+        c = (rows[:, 0] + rows[:, 2]) / 2.0
+        return np.column_stack([rows[:, 0] - c, rows[:, 1] - c, c])
 
 
-def _trig_coefficients(fn):
-    """(p, q, c) of ``fn(θ) = p cos θ + q sin θ + c`` from its values at 0°, 90° and 180°."""
-    f0, f90, f180 = (float(v) for v in fn(np.array([0.0, 90.0, 180.0])))
-    c = (f0 + f180) / 2.0
-    return f0 - c, f90 - c, c
-
-
-def _breakpoints(fns, lo_deg, hi_deg):
+def _breakpoints(model: _Model, weights, lo_deg, hi_deg):
+    """`lo_deg`, `hi_deg` and every zero in between of the weighted functions, sorted."""
+    coef = np.asarray(weights, dtype=float) @ model.trig_coefficients()
     pts = {lo_deg, hi_deg}
-    for fn in fns:
-        pts.update(r for r in st.solve_cos_sin(*_trig_coefficients(fn)) if lo_deg < r < hi_deg)
+    for p, q, c in coef:
+        pts.update(r for r in st.solve_cos_sin(p, q, c) if lo_deg < r < hi_deg)
     return np.array(sorted(pts))
 
 
@@ -196,13 +187,15 @@ def _handover_deg(model: _Model) -> Optional[float]:
     """Smallest climbing slope >= 0 where the overdriven axle is the first to slip."""
     if model.overdriven is None:
         return None
-    pts = _breakpoints([model.fast_first_margin], 0.0, 90.0)
+    (msf, _), (msr, _) = model.mu_f, model.mu_r
+    w = (-msf, msr, -1.0) if model.overdriven == "rear" else (msf, -msr, -1.0)
+    pts = _breakpoints(model, [w], 0.0, 90.0)
     angle, _ = _first_failure(lambda t: model.fast_first_margin(t) >= 0, pts)
     return angle
 
 
 def _max_grade(model: _Model) -> tuple[float, str]:
-    pts = _breakpoints(model.boundary_functions(), 0.0, 90.0)
+    pts = _breakpoints(model, model.boundary_weights(), 0.0, 90.0)
     angle, sample = _first_failure(lambda t: np.isin(model.state(t).state, HOLDING), pts)
     if angle is None:
         return 90.0, "lift"
