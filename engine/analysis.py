@@ -184,13 +184,21 @@ def _first_failure(pred, pts):
 
 
 def _handover_deg(model: _Model) -> Optional[float]:
-    """Smallest climbing slope >= 0 where the overdriven axle is the first to slip."""
+    """Smallest climbing slope >= 0 where the overdriven axle is the first to slip.
+
+    Only where both axles are on the ground: past a lift nothing slips (the rig has tipped).
+    """
     if model.overdriven is None:
         return None
     (msf, _), (msr, _) = model.mu_f, model.mu_r
     w = (-msf, msr, -1.0) if model.overdriven == "rear" else (msf, -msr, -1.0)
-    pts = _breakpoints(model, [w], 0.0, 90.0)
-    angle, _ = _first_failure(lambda t: model.fast_first_margin(t) >= 0, pts)
+    pts = _breakpoints(model, [w, (1.0, 0.0, 0.0), (0.0, 1.0, 0.0)], 0.0, 90.0)
+
+    def not_handed_over(t):
+        nf, nr = model.loads(t)
+        return (model.fast_first_margin(t) >= 0) | (nf <= 0) | (nr <= 0)
+
+    angle, _ = _first_failure(not_handed_over, pts)
     return angle
 
 

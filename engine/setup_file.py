@@ -29,6 +29,7 @@ from .setup_model import (
 )
 
 MAX_FILE_BYTES = 1 << 20
+MAX_STAGES = 10  # more would overflow the reduction (1000**103 > 1e308); real drivelines have 1 to 4
 SECTIONS = ("rig", "driveline", "grip", "terrain", "course")
 TOP_KEYS = ("schema", "name", "notes") + SECTIONS
 SECTION_KEYS = {
@@ -43,6 +44,15 @@ SECTION_KEYS = {
 BALLAST_KEYS = ("name", "mass_g", "x_mm", "z_mm")
 
 
+_CONTROL = re.compile("[\x00-\x08\x0a-\x1f\x7f\x85\u2028\u2029]")
+
+
+def one_line(text: str) -> str:
+    """`text` with line breaks and terminal control characters spelled out (a key or file name
+    in a hostile file can hold them; printed raw they would break the line or the terminal)."""
+    return _CONTROL.sub(lambda m: repr(m.group())[1:-1], text)
+
+
 class SetupError(ValueError):
     """A setup file or value that cannot be used. `str()` is one line for the user."""
 
@@ -52,7 +62,7 @@ class SetupError(ValueError):
         where = path or "<setup>"
         if line is not None:
             where += f":{line}"
-        super().__init__(f"{where}: {message}")
+        super().__init__(one_line(f"{where}: {message}"))
 
 
 @dataclass
@@ -75,7 +85,12 @@ def find_line(text: str, key: str) -> Optional[int]:
 
     A plain scan of table headers and ``key =`` lines; good enough for files a person writes.
     Returns the table header's line when the key itself is absent, None when neither is found.
+    A key that is itself a table ("motor", "rig.ballast") gives its (first) header's line.
     """
+    for no, line in enumerate(text.splitlines(), 1):
+        m = _HEADER.match(line)
+        if m and m.group(2).replace('"', "").replace(" ", "") == key:
+            return no
     parts = key.split(".")
     if len(parts) >= 3 and parts[2].isdigit():
         table, want_index, leaf = ".".join(parts[:2]), int(parts[2]), (parts[3] if len(parts) > 3 else None)
@@ -159,8 +174,9 @@ class _Reader:
     def stages(self, table: dict, key: str):
         dotted = f"driveline.{key}"
         value = table[key]
-        if not isinstance(value, list) or not value:
-            self.fail(dotted, f"{dotted} = {_show(value)}: must be a list of [driver, driven] tooth counts")
+        if not isinstance(value, list) or not 1 <= len(value) <= MAX_STAGES:
+            self.fail(dotted, f"{dotted} = {_show(value)}: must be a list of 1 to {MAX_STAGES} "
+                              "[driver, driven] tooth counts")
         out = []
         for i, stage in enumerate(value):
             if not isinstance(stage, list) or len(stage) != 2:
@@ -292,7 +308,7 @@ def parse_setup(text: str, path: str = "<setup>") -> tuple[Setup, dict, list]:
         raise SetupError(f"TOML syntax: {reason}", path, line) from None
     reader = _Reader(path, text, data)
     setup = reader.read()
-    return setup, data, reader.warnings
+    return setup, data, [one_line(w) for w in reader.warnings]
 
 
 def read_setup_text(path) -> tuple[str, int]:
@@ -338,19 +354,43 @@ def load_setup(path) -> LoadedSetup:
     return LoadedSetup(Path(path), setup, text, data, mtime, warnings)
 
 
+def _is_text_key(key: str) -> bool:
+    parts = key.split(".")
+    return key in ("name", "notes", "terrain.load") or (
+        len(parts) == 4 and parts[:2] == ["rig", "ballast"] and parts[3] == "name")
+
+
 def check_value(setup: Setup, key: str, value) -> Optional[str]:
     """Why `value` cannot go at dotted `key` of `setup` (range or cross-field), or None if it can."""
-    try:
-        rule = rule_for(key)
-    except KeyError:
-        rule = None
-    if rule is not None:
+    if not isinstance(key, str):
+        return "not a setup key"
+    parts = key.split(".")
+    if _is_text_key(key):
+        if not isinstance(value, str):
+            return "must be text"
+        if key == "terrain.load" and value not in LOAD_MODES:
+            return f"must be one of {', '.join(map(repr, LOAD_MODES))}"
+    elif len(parts) >= 2 and parts[0] == "driveline" and parts[1] in ("front_stages", "rear_stages"):
+        # one tooth count at a time: driveline.front_stages.<stage>.<0 driver | 1 driven>
+        stages = getattr(setup.driveline, parts[1])
+        if (len(parts) != 4 or not parts[2].isdigit() or parts[3] not in ("0", "1") or stages is None
+                or int(parts[2]) >= len(stages)):
+            return "not a tooth count of this setup's gear stages"
+        problem = FIELDS["driveline.teeth"].problem(value)
+        return problem and f"{problem} [teeth]"
+    else:
+        try:
+            rule = rule_for(key)
+        except (KeyError, IndexError):
+            return "not a setup key"
+        if key not in FIELDS and not (len(parts) == 4 and parts[2].isdigit()):
+            return "not a setup key"  # e.g. rig.ballast.x.mass_g
         problem = rule.problem(value)
         if problem:
             return f"{problem}" + (f" [{rule.unit}]" if rule.unit else "")
     try:
         candidate = setup.with_value(key, value)
-    except (TypeError, ValueError, IndexError) as exc:
+    except (TypeError, ValueError, IndexError, AttributeError, KeyError) as exc:
         return str(exc)
     problems = cross_field_problems(candidate)
     return problems[0][1] if problems else None

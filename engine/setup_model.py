@@ -173,16 +173,18 @@ class FieldRule:
 
 
 _POS = dict(lo=0.0)
+# Lengths the model divides by: at least 1 mm, so a subnormal typo (5e-324) cannot overflow a force.
+_DIVISOR_MM = dict(lo=1.0, lo_open=False)
 # Bounds that are physical limits of the model come from MODEL conventions; the wide upper
 # bounds (mass, lengths) only reject typos of several orders of magnitude.
 FIELDS: dict[str, FieldRule] = {
     "rig.mass_g": FieldRule(**_POS, hi=1e6, unit="g", help="all-up weight"),
-    "rig.wheelbase_mm": FieldRule(**_POS, hi=1e5, unit="mm", help="front to rear axle"),
+    "rig.wheelbase_mm": FieldRule(**_DIVISOR_MM, hi=1e5, unit="mm", help="front to rear axle"),
     "rig.front_bias_pct": FieldRule(lo=0.0, hi=100.0, unit="%", help="weight on the front axle, rig level"),
     "rig.cg_height_mm": FieldRule(**_POS, hi=1e5, unit="mm", help="CG above flat ground, tyres included"),
     "rig.track_mm": FieldRule(**_POS, hi=1e5, unit="mm", help="tyre centre to tyre centre"),
-    "rig.tire_dia_front_mm": FieldRule(**_POS, hi=1e4, unit="mm", help="front tyre outer diameter"),
-    "rig.tire_dia_rear_mm": FieldRule(**_POS, hi=1e4, unit="mm", help="rear tyre outer diameter"),
+    "rig.tire_dia_front_mm": FieldRule(**_DIVISOR_MM, hi=1e4, unit="mm", help="front tyre outer diameter"),
+    "rig.tire_dia_rear_mm": FieldRule(**_DIVISOR_MM, hi=1e4, unit="mm", help="rear tyre outer diameter"),
     "ballast.mass_g": FieldRule(lo=-1e6, hi=1e6, lo_open=False, hi_open=False, unit="g",
                                 help="added mass; negative: removed"),
     "ballast.x_mm": FieldRule(lo=-1e5, hi=1e5, lo_open=False, hi_open=False, unit="mm",

@@ -170,6 +170,8 @@ def _remove_stale_temps(folder: Path, name: str) -> None:
 def write_atomic(path: Path, text: str) -> int:
     """Replace `path` with `text` atomically; returns the new mtime_ns. Raises SaveError."""
     path = Path(path)
+    if path.is_symlink():  # write through the link: renaming over it would replace the link itself
+        path = Path(os.path.realpath(path))
     folder = path.parent if str(path.parent) else Path(".")
     if path.is_dir():
         raise SaveError(f"{path}: is a folder, not a setup file")

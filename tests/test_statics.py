@@ -1,0 +1,231 @@
+"""Slope statics (axle loads and the named angles) against published values and an independent model."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from numpy.testing import assert_allclose
+
+import engine
+from engine import slope_statics as ss
+from engine import Driveline, Grip, Rig, Setup, Terrain
+
+import reference_model as ref
+from conftest import examples, rig_setups
+
+
+def plain_setup(mass_g=2000.0, wheelbase_mm=300.0, front_bias_pct=60.0, cg_height_mm=75.0, track_mm=240.0,
+                overdrive_pct=0.0, mu=(1.0, 0.8), rolling=0.0, accel_g=0.0, load="climb", ballast=()):
+    return Setup(
+        name="test rig",
+        rig=Rig(mass_g, wheelbase_mm, front_bias_pct, cg_height_mm, track_mm, 110.0, 110.0, tuple(ballast)),
+        driveline=Driveline(overdrive_pct),
+        grip=Grip(mu[0], mu[1], rolling),
+        terrain=Terrain(0.0, accel_g, load),
+    )
+
+
+# --- published values ---------------------------------------------------------------------------
+
+def test_grade_loads_gillespie_example():
+    # Gillespie, Fundamentals of Vehicle Dynamics, ch. 2, grade-load equations, applied to
+    # W 49,050 N, 10 deg, L 2.25 m, b 1.0 m, h 1.5 m; 15,790.5 N and 32,514.3 N worked by hand.
+    # The equations are linear in force and scale-free in length: N in, N out; metres as mm.
+    front, rear = ss.axle_loads_g(49050.0, 2250.0, 1000.0, 1500.0, 10.0)
+    assert_allclose(front, 15790.5, atol=0.1)
+    assert_allclose(rear, 32514.3, atol=0.1)
+
+
+def test_grade_loads_gillespie_example_through_analyse():
+    # Same Gillespie example through the public entry: a "rig" of 49,050 units, b/L as front bias.
+    setup = plain_setup(mass_g=49050.0, wheelbase_mm=2250.0, front_bias_pct=100.0 * 1.0 / 2.25,
+                        cg_height_mm=1500.0, track_mm=1500.0)
+    sweep = engine.analyse(setup, [10.0]).sweep
+    assert_allclose(sweep.front_normal_g[0], 15790.5, atol=0.1)
+    assert_allclose(sweep.rear_normal_g[0], 32514.3, atol=0.1)
+
+
+def test_overturn_angle_gillespie_example():
+    # Gillespie ch. 2 / Jazar ch. 2 tilting angle: front unloads at tan θ = b/h = 1.0/1.5 -> 33.69 deg.
+    assert_allclose(ss.front_lift_angle_deg(1000.0, 1500.0), 33.69, atol=0.005)
+    setup = plain_setup(mass_g=49050.0, wheelbase_mm=2250.0, front_bias_pct=100.0 / 2.25, cg_height_mm=1500.0)
+    assert_allclose(engine.analyse(setup).angles_deg["front_lift"], 33.69, atol=0.005)
+
+
+def test_static_stability_factor_nhtsa():
+    # NHTSA static stability factor SSF = T/(2h) (68 FR 59250, 2003): T 240, h 120 -> 1.0, 45 deg.
+    assert_allclose(ss.static_stability_factor(240.0, 120.0), 1.0, rtol=1e-12)
+    assert_allclose(ss.sidehill_roll_angle_deg(240.0, 120.0), 45.0, atol=1e-9)
+    setup = plain_setup(cg_height_mm=120.0, track_mm=240.0)
+    assert_allclose(engine.analyse(setup).angles_deg["sidehill_roll"], 45.0, atol=1e-9)
+
+
+def test_sidehill_slide_is_atan_mu_serway_values():
+    # Serway & Beichner table 5.2, rubber on dry concrete μ_s 1.0: slides sideways at atan(1.0) = 45 deg;
+    # block on an incline slides at tan α = μ_s (Serway & Beichner ch. 5).
+    setup = plain_setup(mu=(1.0, 0.8))
+    assert_allclose(engine.analyse(setup).angles_deg["sidehill_slide"], 45.0, atol=1e-9)
+
+
+# --- rules of thumb of the trade ---------------------------------------------------------------
+
+def _thumb_rig(front_bias_pct, cg_height_mm):
+    return engine.analyse(plain_setup(wheelbase_mm=300.0, front_bias_pct=front_bias_pct, cg_height_mm=cg_height_mm))
+
+
+def test_rule_of_thumb_balance_22_lifts_near_68():
+    # common practice, no source: a 60 % front-bias rig whose loads balance at 22 deg lifts its front near 68 deg.
+    h = 0.1 * 300.0 / math.tan(math.radians(22.0))  # the CG height that puts balance at 22 deg
+    a = _thumb_rig(60.0, h)
+    assert a.angles_deg["balance"] == pytest.approx(22.0, abs=1e-6)
+    assert a.angles_deg["front_lift"] == pytest.approx(68.0, abs=1.0)
+
+
+def test_rule_of_thumb_more_bias_and_lower_cg():
+    # common practice, no source: on that rig (300 mm wheelbase) 65 % bias moves balance to about 31 deg,
+    # and a CG 10 mm lower (at 60 %) moves it to about 25 deg.
+    h = 0.1 * 300.0 / math.tan(math.radians(22.0))
+    assert _thumb_rig(65.0, h).angles_deg["balance"] == pytest.approx(31.0, abs=0.5)
+    assert _thumb_rig(60.0, h - 10.0).angles_deg["balance"] == pytest.approx(25.0, abs=0.5)
+
+
+# --- the independent reference model -----------------------------------------------------------
+
+SWEEP_DEG = np.arange(-89.0, 89.5, 0.5)
+
+
+@settings(max_examples=examples(60))
+@given(rig_setups(overdrive=False, rolling=False))
+def test_loads_and_statics_angles_match_reference(setup):
+    # Gillespie ch. 2 grade loads (rear-contact moments) and Jazar ch. 2 tilting angles, recomputed
+    # by tests/reference_model.py: scalar loop, brentq roots. Tolerances from the issue:
+    # 0.1 % of the weight, 0.05 deg.
+    a = engine.analyse(setup, SWEEP_DEG)
+    r = ref.ref_rig_from_setup(setup)
+    assert a.rig.mass_g == pytest.approx(r.weight_g, rel=1e-9)
+    assert a.rig.cg_from_rear_mm == pytest.approx(r.cg_from_rear_mm, rel=1e-9)
+    assert a.rig.cg_height_mm == pytest.approx(r.cg_height_mm, rel=1e-9)
+    loads = np.array([ref.axle_loads(r, t) for t in SWEEP_DEG])
+    assert_allclose(a.sweep.front_normal_g, loads[:, 0], rtol=0, atol=1e-3 * r.weight_g)
+    assert_allclose(a.sweep.rear_normal_g, loads[:, 1], rtol=0, atol=1e-3 * r.weight_g)
+    expected = {
+        "balance": ref.balance_deg(r),
+        "front_lift": ref.front_lift_deg(r),
+        "rear_lift": ref.rear_lift_deg(r),
+        "sidehill_roll": ref.sidehill_roll_deg(r),
+        "sidehill_slide": ref.sidehill_slide_deg(r),
+    }
+    for name, want in expected.items():
+        got = a.angles_deg[name]
+        if want is None:
+            assert got is None or abs(got) > 89.9, name
+        else:
+            assert got == pytest.approx(want, abs=0.05), name
+
+
+@settings(max_examples=examples(60))
+@given(rig_setups(per_axle=True), st.floats(0.0, 0.8))
+def test_loads_with_throttle_match_reference(setup, accel_g):
+    # Gillespie ch. 2: the inertia force W a_x acts at the CG height and unloads the front.
+    a = engine.analyse(setup, SWEEP_DEG, accel_g=accel_g, load="climb")
+    r = ref.ref_rig_from_setup(setup, load="climb", accel_g=accel_g)
+    loads = np.array([ref.axle_loads(r, t) for t in SWEEP_DEG])
+    assert_allclose(a.sweep.front_normal_g, loads[:, 0], rtol=0, atol=1e-3 * r.weight_g)
+    assert_allclose(a.sweep.rear_normal_g, loads[:, 1], rtol=0, atol=1e-3 * r.weight_g)
+    assert_allclose(a.sweep.required_g, [ref.required_force(r, t) for t in SWEEP_DEG], rtol=0, atol=1e-3 * r.weight_g)
+    for name, fn in (("balance", ref.balance_deg), ("front_lift", ref.front_lift_deg), ("rear_lift", ref.rear_lift_deg)):
+        want, got = fn(r), a.angles_deg[name]
+        if want is None:
+            assert got is None, name
+        else:
+            assert got == pytest.approx(want, abs=0.05), name
+
+
+# --- properties over the whole valid input space -----------------------------------------------
+
+@given(rig_setups(), st.lists(st.floats(-89.9, 89.9), min_size=1, max_size=20), st.floats(-1.0, 1.0))
+def test_normal_forces_sum_to_weight_cosine(setup, slopes, accel_g):
+    # Gillespie ch. 2: forces normal to the slope balance, N_f + N_r = W cos θ (any a_x).
+    a = engine.analyse(setup, slopes, accel_g=accel_g, load="climb")
+    W = a.rig.mass_g
+    assert_allclose(a.sweep.front_normal_g + a.sweep.rear_normal_g, W * np.cos(np.radians(slopes)),
+                    rtol=0, atol=1e-9 * W)
+
+
+@given(rig_setups(), st.lists(st.floats(-89.9, 89.9), min_size=1, max_size=20), st.floats(-1.0, 1.0))
+def test_moments_about_cg_balance(setup, slopes, accel_g):
+    # Newton-Euler about the CG (Gillespie ch. 2 free-body diagram): with the CG at b along and h
+    # above the slope, N_f a − N_r b + h ΣF_x = 0, where the ground forces sum to W (sin θ + a_x).
+    a = engine.analyse(setup, slopes, accel_g=accel_g, load="climb")
+    W, L, b, h = a.rig.mass_g, a.rig.wheelbase_mm, a.rig.cg_from_rear_mm, a.rig.cg_height_mm
+    ground_x = W * (np.sin(np.radians(slopes)) + accel_g)
+    moment = a.sweep.front_normal_g * (L - b) - a.sweep.rear_normal_g * b + h * ground_x
+    assert_allclose(moment, 0.0, atol=1e-9 * W * L)
+
+
+@given(rig_setups())
+def test_named_angles_are_where_the_sweep_changes_sign(setup):
+    # Definitions (Gillespie ch. 2): balance where N_f − N_r crosses zero, front lift where N_f does,
+    # rear lift where N_r does; checked on the engine's own sweep 0.01 deg either side.
+    a = engine.analyse(setup)
+    eps = 0.01
+    checks = {
+        "balance": lambda s: s.front_normal_g - s.rear_normal_g,
+        "front_lift": lambda s: s.front_normal_g,
+        "rear_lift": lambda s: s.rear_normal_g,
+    }
+    for name, fn in checks.items():
+        t = a.angles_deg[name]
+        if t is None or abs(t) > 89.9:
+            continue
+        before, after = fn(a.at([t - eps, t + eps]))
+        assert before * after < 0, name
+
+
+@given(rig_setups(overdrive=False))
+def test_lift_angles_bound_the_sweep(setup):
+    # Between the rear-lift and front-lift angles both axles carry load; outside, one is off the
+    # ground and the sweep says which (Jazar ch. 2 tilting angles).
+    a = engine.analyse(setup, np.arange(-89.0, 90.0, 1.0))
+    fl, rl = a.angles_deg["front_lift"], a.angles_deg["rear_lift"]
+    for t, lifted in zip(a.sweep.slope_deg, a.sweep.lifted):
+        if rl + 0.01 < t < fl - 0.01:
+            assert lifted is None, t
+        elif t > fl + 0.01:
+            assert lifted == "front", t
+        elif t < rl - 0.01:
+            assert lifted == "rear", t
+
+
+def test_balance_angle_negative_for_rear_biased_rig():
+    # tan θ = (b − L/2)/h < 0 when b < L/2 (Gillespie ch. 2): 40 % bias, L 300, h 100 -> atan(−0.3).
+    a = engine.analyse(plain_setup(front_bias_pct=40.0, cg_height_mm=100.0))
+    assert a.angles_deg["balance"] == pytest.approx(math.degrees(math.atan(-0.3)), abs=1e-9)
+
+
+def test_scalar_and_array_slopes_agree():
+    # The engine is vectorised: one slope or many give the same numbers (pvlib habit: scalar, array, edge).
+    setup = plain_setup()
+    many = engine.analyse(setup, [-45.0, 0.0, 30.0]).sweep
+    for i, t in enumerate([-45.0, 0.0, 30.0]):
+        one = engine.analyse(setup, t).sweep
+        assert float(one.front_normal_g) == pytest.approx(many.front_normal_g[i], rel=1e-12)
+    front, rear = ss.axle_loads_g(2000.0, 300.0, 180.0, 75.0, np.zeros((2, 3)))
+    assert front.shape == (2, 3) and np.allclose(front, 1200.0) and np.allclose(rear, 800.0)
+
+
+def test_ballast_combination_by_hand():
+    # Jazar ch. 2: the mass centre is the mass-weighted mean position. 2000 g at (180, 75) plus
+    # 200 g at (300, 40) minus 100 g at (100, 60): total 2100 g, x = (360000 + 60000 − 10000)/2100,
+    # z = (150000 + 8000 − 6000)/2100.
+    from engine import BallastItem
+    setup = plain_setup(ballast=(BallastItem("weights", 200.0, 300.0, 40.0), BallastItem("links", -100.0, 100.0, 60.0)))
+    rig = engine.analyse(setup).rig
+    assert rig.mass_g == pytest.approx(2100.0)
+    assert rig.cg_from_rear_mm == pytest.approx(410000.0 / 2100.0, rel=1e-12)
+    assert rig.cg_height_mm == pytest.approx(152000.0 / 2100.0, rel=1e-12)
+    assert rig.front_bias_pct == pytest.approx(100.0 * 410000.0 / 2100.0 / 300.0, rel=1e-12)

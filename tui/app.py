@@ -1,0 +1,491 @@
+"""The full-screen tuner: a setup form, the live load chart, the flag and the status words.
+
+State lives here (the setup, the file it came from, the baseline, the display units); each widget
+shows what the app hands it. A key in the form changes the setup and its value at once; the flag
+and the status words follow in the same frame, the chart one frame after them. While a key is held
+the words update at most 12 and the chart 5 times a second, always ending on the latest value, so
+a slow link never queues up frames. The modal screens (save-as, open, help, measuring, and the
+course and plan screens when they are installed) are imported when first used.
+"""
+
+from __future__ import annotations
+
+import importlib
+import math
+import time
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Callable, ClassVar, Iterable, Optional
+
+import numpy as np
+from textual import on
+from textual.app import App, ComposeResult, SystemCommand
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical
+from textual.message import Message
+from textual.screen import Screen
+from textual.widgets import Footer, Static
+
+from engine import Analysis, LoadedSetup, Setup, SetupError, analyse, load_setup
+
+from .widgets.load_chart import LoadChart, chart_data
+from .widgets.setup_form import SetupForm
+from .widgets.status_pane import FlagLine, StatusPane
+from .widgets.status_words import status_view
+from .widgets.title_bar import TitleBar
+from .widgets.units import Units
+
+MIN_COLUMNS, MIN_ROWS = 60, 20
+WORDS_EVERY_S = 1 / 12
+CHART_EVERY_S = 1 / 5
+SLOPES_CLIMB = np.arange(0.0, 91.0, 1.0)
+SLOPES_BOTH = np.arange(-90.0, 91.0, 1.0)
+SHORT_CAUTION = "Static model: wind-up loads gears and motors; bench-test hands clear. F1: help"
+# grouped keys are drawn side by side: the slash keeps "Up/Dn" readable
+ASCII_KEYS = {"up": "Up", "down": "/Dn", "left": "Lt", "right": "/Rt", "shift+left": "S-Lt",
+              "shift+right": "S-Rt"}
+
+
+class Throttle:
+    """Call `run` at once, then at most once per `every_s`; calls in between book one trailing run."""
+
+    def __init__(self, app: App, every_s: float, run: Callable[[], None]) -> None:
+        self.app, self.every_s, self.run = app, every_s, run
+        self._last = -math.inf
+        self._timer = None
+
+    def __call__(self) -> None:
+        if self._timer is not None:
+            return  # the trailing run will see the latest state
+        wait = self._last + self.every_s - time.monotonic()
+        if wait <= 0:
+            self._fire()
+        else:
+            self._timer = self.app.set_timer(wait, self._trailing)
+
+    @property
+    def pending(self) -> bool:
+        return self._timer is not None
+
+    def _trailing(self) -> None:
+        self._timer = None
+        self._fire()
+
+    def _fire(self) -> None:
+        self._last = time.monotonic()
+        self.run()
+
+
+@dataclass
+class Baseline:
+    setup: Setup
+    label: str  # "pinned" or the file it came from
+
+
+class TunerScreen(Screen):
+    """The tuner's one screen; a plain notice replaces it when the terminal is too small."""
+
+    def __init__(self, setup: Setup, units: Units) -> None:
+        super().__init__(id="tuner")
+        self._setup, self._units = setup, units
+
+    def compose(self) -> ComposeResult:
+        yield TitleBar(id="title")
+        yield FlagLine(id="flag")
+        with Horizontal(id="body"):
+            yield SetupForm(self._setup, self._units, id="form")
+            with Vertical(id="right"):
+                yield LoadChart(ascii_only=self._units.ascii_only, id="chart")
+                yield StatusPane(id="status")
+        yield Static(f"Terminal too small: slopetune needs at least {MIN_COLUMNS}x{MIN_ROWS}.\n"
+                     "Make the window larger; your setup is kept.", id="too-small", markup=False)
+        yield Footer()
+
+    class Ready(Message):
+        """The screen's widgets are mounted."""
+
+    def on_mount(self) -> None:
+        self.post_message(self.Ready())
+
+    def on_resize(self, event) -> None:
+        """Swap to the plain notice below the smallest usable size."""
+        width, height = event.size
+        small = width < MIN_COLUMNS or height < MIN_ROWS
+        self.set_class(small, "-too-small")
+        self.set_class(width >= 110, "-wide")
+        self.set_class(width < 80 or height < 24, "-cramped")
+        if small:
+            self.set_focus(None)  # no edits the user cannot see
+        elif self.focused is None:
+            self.call_after_refresh(self.query_one(SetupForm).focus)
+
+
+class SlopeTuneApp(App[int]):
+    """slopetune's tuner. `run()` returns the exit code."""
+
+    CSS_PATH = "app.tcss"
+    TITLE = "slopetune"
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("ctrl+s", "save", "Save", id="tuner.save"),
+        Binding("a", "save_as", "Save as", show=False, id="tuner.save_as"),
+        Binding("o", "open", "Open", show=False, id="tuner.open"),
+        Binding("b", "pin_baseline", "Pin baseline", id="tuner.pin_baseline"),
+        Binding("B", "open_baseline", "Open file as baseline", show=False, id="tuner.open_baseline"),
+        Binding("x", "clear_baseline", "Clear baseline", show=False, id="tuner.clear_baseline"),
+        Binding("u", "toggle_units", "Units: metric / imperial", show=False, id="tuner.units"),
+        Binding("r", "toggle_range", "Slope range: climbs / with descents", show=False, id="tuner.range"),
+        Binding("m", "measure", "Measure the rig (scales, tilt board)", show=False, id="tuner.measure"),
+        Binding("c", "course", "Course view (if installed)", show=False, id="tuner.course"),
+        Binding("p", "plan", "Plan a setup (if installed)", show=False, id="tuner.plan"),
+        Binding("f1,question_mark", "help", "Help", id="tuner.help"),
+        Binding("q", "quit", "Quit", id="tuner.quit"),
+    ]
+
+    def __init__(self, loaded: LoadedSetup, *, baseline: Optional[LoadedSetup] = None,
+                 ascii_only: bool = False, driver_class=None) -> None:
+        super().__init__(driver_class=driver_class)
+        self.loaded = loaded
+        self.path: Optional[Path] = loaded.path
+        self.setup = loaded.setup
+        self.saved_setup = loaded.setup
+        self.units = Units(imperial=False, ascii_only=ascii_only)
+        self.full_range = False
+        self.baseline: Optional[Baseline] = (
+            Baseline(baseline.setup, baseline.path.name if baseline.path else "baseline") if baseline else None)
+        self.analysis: Optional[Analysis] = None
+        self._baseline_analysis: Optional[Analysis] = None
+        self._chart_pending = False
+        # A held key: the value moves every key, the words at most 12 times and the chart 5 times a
+        # second, each with a last update that shows the final value; a slow link never queues frames.
+        self.word_updates = Throttle(self, WORDS_EVERY_S, self._show_words)
+        self.chart_updates = Throttle(self, CHART_EVERY_S, self._push_chart)
+        self._first_note = loaded.warnings[0] if loaded.warnings else SHORT_CAUTION
+        self.main_screen = TunerScreen(self.setup, self.units)
+
+    # ----- set-up
+
+    @property
+    def ascii_only(self) -> bool:
+        return self.units.ascii_only
+
+    def get_default_screen(self) -> Screen:
+        return self.main_screen
+
+    @on(TunerScreen.Ready)
+    def _tuner_ready(self) -> None:
+        """The main screen is up: find its widgets and show the setup."""
+        s = self.main_screen
+        self.title_bar = s.query_one(TitleBar)
+        self.flag = s.query_one(FlagLine)
+        self.form = s.query_one(SetupForm)
+        self.chart = s.query_one(LoadChart)
+        self.status = s.query_one(StatusPane)
+        self.form.focus()
+        self._note(self._first_note, "warning" if self.loaded.warnings else "info")
+        self._recompute(baseline_too=True)
+        self._show_title()
+
+    def get_key_display(self, binding: Binding) -> str:
+        """Plain key names on terminals without arrows in their font."""
+        if self.ascii_only and binding.key in ASCII_KEYS:
+            return ASCII_KEYS[binding.key]
+        return super().get_key_display(binding)
+
+    # ----- state shown by the widgets
+
+    @property
+    def unsaved(self) -> bool:
+        return self.path is None or self.setup != self.saved_setup
+
+    def _slopes(self) -> np.ndarray:
+        return SLOPES_BOTH if self.full_range else SLOPES_CLIMB
+
+    def _recompute(self, baseline_too: bool = False) -> None:
+        """Analyse the setup and show it now (a deliberate action, not a held key)."""
+        if baseline_too:
+            self._baseline_analysis = (analyse(self.baseline.setup, self._slopes())
+                                       if self.baseline is not None else None)
+        self._show_words()
+
+    def _show_words(self) -> None:
+        """Analyse the latest setup, show the flag and the words, and book the chart after them."""
+        self.analysis = analyse(self.setup, self._slopes())
+        view = status_view(self.analysis, self.units, self._baseline_analysis)
+        self.flag.show(view.level, view.flag)
+        self.status.view = view
+        if not self._chart_pending:
+            self._chart_pending = True
+            self.call_after_refresh(self._chart_after_words)
+
+    def _chart_after_words(self) -> None:
+        self._chart_pending = False
+        self.chart_updates()
+
+    def _push_chart(self) -> None:
+        """Hand the chart the latest data; it repaints the lines that changed."""
+        if self.analysis is not None:
+            self.chart.show(chart_data(self.analysis, self.units, self._baseline_analysis))
+
+    def _show_title(self) -> None:
+        t = self.title_bar
+        t.setup_name = self.setup.name
+        t.file_label = self.path.name if self.path else "demo copy, not saved"
+        t.unsaved = self.unsaved
+        base = f"  base: {self.baseline.label}" if self.baseline else ""
+        span = "-90..90" if self.full_range else "0..90"
+        t.right = f"{self.units.name} {span}{base}"
+
+    def _note(self, words: str, severity: str = "info") -> None:
+        self.status.note = (words, "error" if severity == "error" else "info")
+
+    def _replace_setup(self, setup: Setup, note: Optional[str] = None) -> None:
+        """A whole new setup from outside the form (opened, measured, planned)."""
+        self.setup = setup
+        self.form.load(setup, self.units)
+        self._recompute()
+        self._show_title()
+        if note:
+            self._note(note)
+
+    # ----- messages from the form
+
+    @on(SetupForm.Edited)
+    def _edited(self, message: SetupForm.Edited) -> None:
+        """The form changed the setup: recompute and redraw."""
+        self.setup = message.setup
+        if self.status.note[1] != "error":
+            self._note("")  # a note has been read by the next key; give its room back to the chart
+        self.word_updates()
+        self._show_title()
+        if message.note:
+            self._note(message.note)
+
+    # ----- modal screens (made elsewhere; imported when first used)
+
+    def _screen_class(self, module: str, name: str):
+        try:
+            mod = importlib.import_module(module)
+        except ModuleNotFoundError as exc:
+            if exc.name and module.startswith(exc.name):
+                return None
+            raise
+        return getattr(mod, name, None)
+
+    def _ask(self, question: str, yes: str, no: str, then: Callable[[], None]) -> None:
+        """Ask a yes/no question; run `then` only on yes."""
+        confirm = self._screen_class("tui.screens.confirm", "ConfirmScreen")
+        if confirm is None:
+            self._note(f"{question} (no confirm screen in this build: not done)", "error")
+            return
+        self.push_screen(confirm(question, yes_label=yes, no_label=no), lambda ok: then() if ok else None)
+
+    def _push(self, module: str, name: str, make: Callable, then: Optional[Callable] = None,
+              what: str = "that screen") -> None:
+        cls = self._screen_class(module, name)
+        if cls is None:
+            self._note(f"{what} is not in this build", "error")
+            return
+        self.push_screen(make(cls), then)
+
+    # ----- files
+
+    def action_save(self) -> None:
+        """Save the setup to its file (asks for a name the first time)."""
+        if self.path is None:
+            self.action_save_as()
+        else:
+            self._save_to(self.path, force=False)
+
+    def action_save_as(self) -> None:
+        """Save the setup under another name."""
+        initial = str(self.path) if self.path else str(Path("setups") / "my-setup.toml")
+
+        def chosen(answer: Optional[str]) -> None:
+            if not answer:
+                return
+            target = Path(answer).expanduser()
+            if target.suffix != ".toml":
+                target = target.with_name(target.name + ".toml")
+            same = self.path is not None and _same_file(target, self.path)
+            if target.exists() and not same:
+                self._ask(f"{target} exists. Replace it?", "Replace", "Keep it",
+                          lambda: self._save_to(target, force=True))
+            else:
+                self._save_to(target, force=False)
+
+        self._push("tui.screens.path_prompt", "PathPromptScreen",
+                   lambda cls: cls("Save setup as", initial=initial), chosen, "save-as")
+
+    def _save_to(self, target: Path, force: bool) -> None:
+        from .setup_writer import FileChangedOnDisk, SaveError, save_setup
+
+        loaded = self.loaded
+        try:
+            saved = save_setup(loaded, self.setup, target, force=force)
+        except FileChangedOnDisk:
+            self._ask(f"{target.name} changed on disk since it was opened. Overwrite it?",
+                      "Overwrite", "Cancel", lambda: self._save_to(target, force=True))
+            return
+        except SaveError as exc:
+            self._note(f"Not saved: {exc}", "error")
+            self.notify(str(exc), title="Not saved", severity="error")
+            return
+        self.loaded = saved
+        self.path = saved.path
+        self.saved_setup = self.setup
+        self._show_title()
+        self._note(f"Saved {saved.path}")
+
+    def action_open(self) -> None:
+        """Open another setup file."""
+        def chosen(path: Optional[Path]) -> None:
+            if path is None:
+                return
+            if self.setup != self.saved_setup:
+                self._ask("Discard the unsaved changes and open another file?", "Discard", "Keep editing",
+                          lambda: self._open(path))
+            else:
+                self._open(path)
+
+        self._push("tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen, "open")
+
+    def _open(self, path: Path) -> None:
+        try:
+            loaded = load_setup(path)
+        except SetupError as exc:
+            self._note(str(exc), "error")
+            return
+        self.loaded, self.path = loaded, loaded.path
+        self.saved_setup = loaded.setup
+        self._replace_setup(loaded.setup, loaded.warnings[0] if loaded.warnings else f"Opened {path}")
+
+    def _folders(self) -> list[Path]:
+        out: list[Path] = []
+        for folder in (self.path.parent if self.path else None, Path.cwd() / "setups", Path.cwd()):
+            if folder is not None and folder.is_dir() and all(not _same_file(folder, f) for f in out):
+                out.append(folder)
+        return out
+
+    # ----- baseline
+
+    def action_pin_baseline(self) -> None:
+        """Pin the current setup as the baseline to compare against."""
+        self.baseline = Baseline(self.setup, "pinned")
+        self._recompute(baseline_too=True)
+        self._show_title()
+        self._note("Baseline pinned (dimmed on the chart); x clears it")
+
+    def action_open_baseline(self) -> None:
+        """Open a setup file as the baseline."""
+        def chosen(path: Optional[Path]) -> None:
+            if path is None:
+                return
+            try:
+                loaded = load_setup(path)
+            except SetupError as exc:
+                self._note(str(exc), "error")
+                return
+            self.baseline = Baseline(loaded.setup, Path(path).name)
+            self._recompute(baseline_too=True)
+            self._show_title()
+            self._note(f"Baseline: {path}")
+
+        self._push("tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen,
+                   "open-as-baseline")
+
+    def action_clear_baseline(self) -> None:
+        """Stop comparing with a baseline."""
+        if self.baseline is None:
+            return
+        self.baseline = None
+        self._recompute(baseline_too=True)
+        self._show_title()
+        self._note("Baseline cleared")
+
+    # ----- display
+
+    def action_toggle_units(self) -> None:
+        """Show metric or imperial units (the file always stays metric)."""
+        self.units = Units(imperial=not self.units.imperial, ascii_only=self.ascii_only)
+        self.form.load(self.setup, self.units)
+        self._recompute()
+        self._show_title()
+
+    def action_toggle_range(self) -> None:
+        """Chart climbs only (0..90) or descents too (-90..90)."""
+        self.full_range = not self.full_range
+        self._recompute(baseline_too=True)
+        self._show_title()
+
+    # ----- other screens
+
+    def action_help(self) -> None:
+        """Keys, what the chart and flags mean, and the cautions."""
+        self._push("tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only), None, "help")
+
+    def action_measure(self) -> None:
+        """Turn scale readings into front bias, CG height and mu."""
+        def apply(values: Optional[dict]) -> None:
+            if not values:
+                return
+            from engine import check_value
+
+            setup, refused = self.setup, []
+            for key, value in values.items():
+                problem = check_value(setup, key, value)
+                if problem:
+                    refused.append(f"{key}: {problem}")
+                else:
+                    setup = setup.with_value(key, value)
+            self._replace_setup(setup, "; ".join(refused) if refused else
+                                "Measured: " + ", ".join(f"{k.split('.')[-1]} {v:.3g}" for k, v in values.items()))
+
+        self._push("tui.screens.measure", "MeasureScreen", lambda cls: cls(self.setup), apply, "measuring")
+
+    def action_course(self) -> None:
+        """Walk the rig over the setup's course (front and rear on different ground)."""
+        self._push("tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
+
+    def action_plan(self) -> None:
+        """Let the planner suggest a setup; apply it if accepted."""
+        def apply(setup: Optional[Setup]) -> None:
+            if setup is not None:
+                self._replace_setup(setup, "Planned setup applied (not saved yet)")
+
+        self._push("tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
+
+    def action_quit(self) -> None:
+        """Quit; asks first when there are unsaved changes."""
+        if self.setup != self.saved_setup:
+            where = self.path.name if self.path else "the demo copy"
+            self._ask(f"Quit without saving the changes to {where}?", "Quit", "Keep editing",
+                      lambda: self.exit(0))
+        else:
+            self.exit(0)
+
+    # ----- command palette
+
+    def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        yield from super().get_system_commands(screen)
+        for title, help_text, action in (
+            ("Save", "Save the setup to its file", self.action_save),
+            ("Save as", "Save the setup under another name", self.action_save_as),
+            ("Open setup", "Open another setup file", self.action_open),
+            ("Pin baseline", "Pin the current setup as the baseline", self.action_pin_baseline),
+            ("Open baseline", "Open a setup file as the baseline", self.action_open_baseline),
+            ("Clear baseline", "Stop comparing with the baseline", self.action_clear_baseline),
+            ("Toggle units", "Metric or imperial display (file stays metric)", self.action_toggle_units),
+            ("Toggle slope range", "Climbs only, or descents too", self.action_toggle_range),
+            ("Measure", "Scale readings to front bias, CG height and mu", self.action_measure),
+            ("Course view", "Walk the rig over the setup's course", self.action_course),
+            ("Plan", "Let the planner suggest a setup", self.action_plan),
+            ("Help", "Keys, chart, flags and cautions", self.action_help),
+        ):
+            yield SystemCommand(title, help_text, action)
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    try:
+        return Path(a).resolve() == Path(b).resolve()
+    except OSError:
+        return False

@@ -1,0 +1,365 @@
+"""The setup form: one row per setup key, stepped with the arrow keys or typed into.
+
+The form keeps the setup it shows and updates it at once on every key, so a burst of steps always
+starts from the latest value; each change goes up as `SetupForm.Edited`. What each key does to the
+setup lives in `form_fields` (no widget code there); this module only draws rows and routes keys.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import ClassVar, Optional
+
+from rich.text import Text
+from textual import events
+from textual.binding import Binding, BindingType
+from textual.containers import VerticalScroll
+from textual.message import Message
+from textual.widget import Widget
+
+from engine import Setup
+
+from . import form_fields as ff
+from .units import Units
+
+EDIT_CHARS = set("0123456789.-+")
+_FIELD_KEYS = Binding.Group("field", compact=True)
+_STEP_KEYS = Binding.Group("step", compact=True)
+MAX_TYPED = 80
+
+
+@dataclass(frozen=True)
+class RowView:
+    """What one row shows; rows repaint only when this changes."""
+
+    text: str
+    value: str = ""
+    unit: str = ""
+    selected: bool = False
+    editing: Optional[str] = None  # the typed text while editing
+    inherited: bool = False
+    error: Optional[str] = None
+    hint: Optional[str] = None  # what the less obvious keys do here, under the selected row
+
+
+class FormRow(Widget):
+    """One line of the form; a second for a refused value's reason or, when selected, a hint."""
+
+    COMPONENT_CLASSES = {"form-row--value", "form-row--inherited", "form-row--edit", "form-row--error", "form-row--hint",
+                         "form-row--unit"}
+
+    def __init__(self, row: ff.Row, view: RowView, ascii_only: bool) -> None:
+        super().__init__(classes=f"-{row.kind}")
+        self.row = row
+        self.ascii_only = ascii_only
+        self._view = view
+        self.set_class(view.selected, "-selected")
+
+    @property
+    def view(self) -> RowView:
+        return self._view
+
+    def show(self, view: RowView) -> None:
+        if view == self._view:
+            return
+        grows = self._second(view) != self._second(self._view)
+        self._view = view
+        self.set_class(view.selected, "-selected")
+        self.refresh(layout=grows)
+
+    def get_content_height(self, container, viewport, width: int) -> int:
+        """One line, plus the wrapped reason when a value was refused (measured at `width`)."""
+        second = self._second(self._view)
+        if second is None:
+            return 1
+        return 1 + len(second.wrap(self.app.console, max(width, 1)))
+
+    def _second(self, view: RowView) -> Optional[Text]:
+        """The line under the row: the reason a value was refused (first), else the hint."""
+        if view.error:
+            return Text(f"  ! {view.error}", self.get_component_rich_style("form-row--error"))
+        if view.hint:
+            return Text(f"  {view.hint}", self.get_component_rich_style("form-row--hint"))
+        return None
+
+    def render(self) -> Text:
+        width = max(self.size.width, 1)
+        text = self._first_line(width)
+        text.truncate(width, overflow="crop")
+        second = self._second(self._view)
+        if second is not None:
+            text.append("\n")
+            text.append_text(second)
+        return text
+
+    def _first_line(self, width: int) -> Text:
+        v, row = self._view, self.row
+        if row.kind == "heading":
+            rule = "-" if self.ascii_only else "\u2500"
+            return Text(f"{rule * 2} {v.text} ".ljust(width, rule))
+        mark = ">" if v.selected else " "
+        text = Text(no_wrap=False, overflow="fold")
+        if row.kind in ("add_ballast", "add_stage"):
+            text.append(f"{mark}{v.text}")
+            return text
+        label_w = 15 if width >= 28 else max(8, width // 2)
+        text.append(f"{mark}{v.text[:label_w - 1]:<{label_w - 1}} ")
+        room = max(width - label_w - 1, 4)
+        if v.editing is not None:
+            typed = v.editing[-(room - 2):] if room > 3 else v.editing
+            text.append(f"{typed}_", self.get_component_rich_style("form-row--edit"))
+        elif row.kind in ("text", "info"):
+            shown = v.value if len(v.value) <= room else v.value[: max(room - 3, 1)] + "..."
+            text.append(shown, self.get_component_rich_style("form-row--value"))
+        elif row.kind != "number":
+            text.append(f"{v.value[:room]:>{room}}", self.get_component_rich_style("form-row--value"))
+        else:
+            unit = v.unit if v.unit in ("", "\u00b0") else f" {v.unit}"
+            value_w = max(room - 4, 4)
+            shown = f"={v.value}" if v.inherited else v.value
+            style = "form-row--inherited" if v.inherited else "form-row--value"
+            text.append(f"{shown:>{value_w}}", self.get_component_rich_style(style))
+            text.append(unit, self.get_component_rich_style("form-row--unit"))
+        return text
+
+
+class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
+    """Every key of the setup; Up/Down choose a row, Left/Right step it, digits start typing."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("up", "move(-1)", "Previous field", id="form.up", group=_FIELD_KEYS),
+        Binding("down", "move(1)", "Next field", id="form.down", group=_FIELD_KEYS),
+        Binding("left", "step(-1)", "Step value down", id="form.step_down", group=_STEP_KEYS),
+        Binding("right", "step(1)", "Step value up", id="form.step_up", group=_STEP_KEYS),
+        Binding("shift+left,left_square_bracket", f"step(-{ff.COARSE})", "Coarse step down",
+                show=False, id="form.coarse_down"),
+        Binding("shift+right,right_square_bracket", f"step({ff.COARSE})", "Coarse step up",
+                show=False, id="form.coarse_up"),
+        Binding("enter", "activate", "Type a value / add / toggle", show=False, id="form.activate"),
+        Binding("delete,backspace", "remove", "Remove item / clear override", show=False, id="form.remove"),
+        Binding("home", "jump(0)", "First field", show=False, id="form.first"),
+        Binding("end", "jump(-1)", "Last field", show=False, id="form.last"),
+        Binding("pageup", "page(-1)", "Page of fields up", show=False, id="form.page_up"),
+        Binding("pagedown", "page(1)", "Page of fields down", show=False, id="form.page_down"),
+    ]
+
+    class Edited(Message):
+        """The form changed the setup (already checked against the loader's rules)."""
+
+        def __init__(self, setup: Setup, key: str, note: Optional[str] = None) -> None:
+            super().__init__()
+            self.setup, self.key, self.note = setup, key, note
+
+    def __init__(self, setup: Setup, units: Units, *, id: Optional[str] = None) -> None:
+        super().__init__(id=id)
+        self.setup = setup
+        self.units = units
+        self.rows: list[ff.Row] = ff.build_rows(setup)
+        self.cursor = self._first_selectable(1)
+        self.typed: Optional[str] = None
+        self.errors: dict[str, str] = {}
+
+    # ----- what the parent hands down
+
+    def load(self, setup: Setup, units: Optional[Units] = None) -> None:
+        """Show another setup (opened, measured, planned) or other units; keeps the cursor's key."""
+        self.typed = None
+        self.errors.clear()
+        if units is not None:
+            self.units = units
+        self._set_setup(setup)
+
+    def compose(self):
+        for i, row in enumerate(self.rows):
+            yield FormRow(row, self._view(i), self.units.ascii_only)
+
+    # ----- queries
+
+    @property
+    def row(self) -> ff.Row:
+        return self.rows[self.cursor]
+
+    def value_text(self, key: str) -> str:
+        """The value shown for `key` (tests and the app's notes read it)."""
+        for i, row in enumerate(self.rows):
+            if row.key == key:
+                return self._view(i).value
+        raise KeyError(key)
+
+    def error_for(self, key: str) -> Optional[str]:
+        return self.errors.get(key)
+
+    def focus_key(self, key: str) -> bool:
+        """Put the cursor on the row of `key`; False if the form has no such row."""
+        for i, row in enumerate(self.rows):
+            if row.key == key and row.selectable:
+                self._move_to(i)
+                return True
+        return False
+
+    # ----- drawing
+
+    def _view(self, i: int) -> RowView:
+        row = self.rows[i]
+        selected = i == self.cursor
+        if not row.selectable and row.kind == "heading":
+            return RowView(row.label)
+        value, unit, inherited = ff.shown_value(self.setup, row, self.units)
+        return RowView(row.label, value, unit, selected, self.typed if selected else None, inherited,
+                       self.errors.get(row.key) if row.key else None,
+                       ff.hint(row, inherited, self.typed is not None) if selected else None)
+
+    def _redraw(self) -> None:
+        for i, widget in enumerate(self.query_children(FormRow)):
+            widget.show(self._view(i))
+
+    def _rebuild(self) -> None:
+        self.remove_children()
+        self.mount_all([FormRow(row, self._view(i), self.units.ascii_only) for i, row in enumerate(self.rows)])
+        self.call_after_refresh(self._scroll_to_cursor)
+
+    def _scroll_to_cursor(self) -> None:
+        rows = list(self.query_children(FormRow))
+        if 0 <= self.cursor < len(rows):
+            # one row above the cursor too, so a heading stays in sight when moving up
+            self.scroll_to_widget(rows[max(self.cursor - 1, 0)], animate=False, immediate=True)
+            self.scroll_to_widget(rows[self.cursor], animate=False, immediate=True)
+
+    # ----- changing the setup
+
+    def _set_setup(self, setup: Setup) -> None:
+        key = self.row.key if self.rows else ""
+        same_shape = ff.shape(setup) == ff.shape(self.setup)
+        self.setup = setup
+        rows = self.rows if same_shape else ff.build_rows(setup)
+        if rows != self.rows:
+            self.rows = rows
+            keys = [r.key for r in rows]
+            self.cursor = keys.index(key) if key in keys and rows[keys.index(key)].selectable else min(
+                self.cursor, len(rows) - 1)
+            if not self.rows[self.cursor].selectable:
+                self.cursor = self._next_selectable(self.cursor, 1)
+            if self.is_mounted:
+                self._rebuild()
+        elif self.is_mounted:
+            self._redraw()
+
+    def _apply(self, edit: ff.Edit) -> None:
+        key = self.row.key or self.row.kind
+        if edit.error:
+            self.errors[key] = edit.error
+            self._redraw()
+            return
+        self.errors.pop(key, None)
+        if edit.setup == self.setup and not edit.note:
+            self._redraw()
+            return
+        self._set_setup(edit.setup)
+        self.post_message(self.Edited(edit.setup, key, edit.note))
+
+    # ----- cursor
+
+    def _first_selectable(self, direction: int) -> int:
+        order = range(len(self.rows)) if direction > 0 else range(len(self.rows) - 1, -1, -1)
+        return next(i for i in order if self.rows[i].selectable)
+
+    def _next_selectable(self, start: int, direction: int) -> int:
+        i = start + direction
+        while 0 <= i < len(self.rows):
+            if self.rows[i].selectable:
+                return i
+            i += direction
+        return start if self.rows[start].selectable else self._first_selectable(direction)
+
+    def _move_to(self, index: int) -> None:
+        if index == self.cursor:
+            return
+        old = self.row.key
+        self.errors.pop(old, None)
+        self.cursor = index
+        self._redraw()
+        self._scroll_to_cursor()
+
+    # ----- actions (bound keys)
+
+    def action_move(self, direction: int) -> None:
+        """Next or previous field."""
+        self._move_to(self._next_selectable(self.cursor, direction))
+
+    def action_jump(self, where: int) -> None:
+        """First or last field."""
+        self._move_to(self._first_selectable(1 if where == 0 else -1))
+
+    def action_page(self, direction: int) -> None:
+        """A screenful of fields up or down."""
+        target = self.cursor
+        for _ in range(max(self.size.height - 2, 1)):
+            target = self._next_selectable(target, direction)
+        self._move_to(target)
+
+    def action_step(self, count: int) -> None:
+        """Step the value by `count` fine steps."""
+        self._apply(ff.step(self.setup, self.row, count))
+
+    def action_activate(self) -> None:
+        """Enter: type into a value, or do what the row says (add, toggle)."""
+        row = self.row
+        if row.kind in ("number", "text"):
+            value, _unit, inherited = ff.shown_value(self.setup, row, self.units)
+            self._start_typing("" if inherited else value)
+        else:
+            self._apply(ff.activate(self.setup, row))
+
+    def action_remove(self) -> None:
+        """Remove a ballast item or gear stage, or clear a per-axle override."""
+        row = self.row
+        if row.optional:
+            self._apply(ff.clear(self.setup, row))
+        elif row.removable:
+            self._apply(ff.remove(self.setup, row))
+
+    # ----- typing
+
+    def _start_typing(self, text: str) -> None:
+        self.typed = text
+        self.errors.pop(self.row.key, None)
+        self._redraw()
+
+    def _finish_typing(self, commit: bool) -> None:
+        typed, self.typed = self.typed, None
+        if commit and typed is not None:
+            self._apply(ff.set_typed(self.setup, self.row, typed, self.units))
+        else:
+            self._redraw()
+
+    def on_key(self, event: events.Key) -> None:
+        """While typing, keys go to the typed text; digits on a number row start typing."""
+        if self.typed is None:
+            if self.row.typeable and event.character and event.character in EDIT_CHARS:
+                event.stop()
+                event.prevent_default()
+                self._start_typing(event.character)
+            return
+        key = event.key
+        handled = True
+        if key == "enter":
+            self._finish_typing(commit=True)
+        elif key == "escape":
+            self._finish_typing(commit=False)
+        elif key in ("up", "down", "tab"):
+            self._finish_typing(commit=True)
+            self.action_move(-1 if key == "up" else 1)
+        elif key == "backspace":
+            self.typed = self.typed[:-1]
+            self._redraw()
+        elif key in ("left", "right", "delete", "home", "end"):
+            pass  # no cursor inside the typed text: keep these from stepping the value
+        elif event.is_printable and event.character:
+            if len(self.typed) < MAX_TYPED:
+                self.typed += event.character
+                self._redraw()
+        else:
+            handled = False
+        if handled:
+            event.stop()
+            event.prevent_default()

@@ -1,0 +1,179 @@
+"""The status pane's words: what the analysis means at the setup's slope, in plain sentences.
+
+Pure functions of an `engine.Analysis` (and a baseline one): no widget code, so the wording can be
+tested on its own. The flag is a word ("SLIP FLAG", "STOP") as well as a colour.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Optional
+
+import numpy as np
+
+from engine import STATES, Analysis
+
+from .units import Units
+
+# How far up or down the slope the flag looks for the overdriven axle becoming the one that slips.
+LOOKAHEAD_DEG = 3.0
+_LOOK_SAMPLES = 25  # every 0.25 deg over +-3 deg
+OTHER = {"front": "rear", "rear": "front"}
+# Named angles compared with a pinned baseline: (key in angles_deg, words).
+COMPARED = (("handover", "handover"), ("max_grade", "max grade"), ("front_lift", "front lift"),
+            ("balance", "balance"))
+
+
+@dataclass(frozen=True)
+class StatusView:
+    level: str  # "ok", "warn" or "danger"
+    flag: str  # the one line that carries the flag
+    lines: tuple[str, ...]  # the plain-words status, one fact per line
+    compare: Optional[str] = None  # how the named angles moved against the baseline
+
+
+def handover_deg(analysis: Analysis) -> Optional[float]:
+    """The handover for the setup's own load mode (climbing, or the weight-only one with no load)."""
+    key = "handover" if analysis.load == "climb" else "handover_no_load"
+    return analysis.angles_deg.get(key)
+
+
+def state_at(analysis: Analysis, slope_deg: float) -> str:
+    return STATES[int(analysis.at(np.array([slope_deg])).traction.state[0])]
+
+
+def _lifted_axle(analysis: Analysis, slope_deg: float) -> str:
+    sweep = analysis.at(np.array([slope_deg]))
+    return "front" if sweep.front_normal_g[0] <= 0 else "rear"
+
+
+def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optional[float]:
+    """The nearest slope within +-LOOKAHEAD_DEG where the overdriven axle lets go first, else None."""
+    lo, hi = max(-90.0, slope_deg - LOOKAHEAD_DEG), min(90.0, slope_deg + LOOKAHEAD_DEG)
+    probe = np.linspace(lo, hi, _LOOK_SAMPLES)
+    states = analysis.at(probe).traction.state
+    hits = probe[states == STATES.index(fast)]
+    handover = handover_deg(analysis)
+    if handover is not None and lo <= handover <= hi:
+        hits = np.append(hits, handover)  # the exact crossing, when it lies in the window
+    if hits.size == 0:
+        return None
+    return float(hits[np.argmin(np.abs(hits - slope_deg))])
+
+
+def flag_line(analysis: Analysis, slope_deg: float, units: Units) -> tuple[str, str]:
+    """(level, words) of the flag at `slope_deg`."""
+    here = state_at(analysis, slope_deg)
+    at = units.slope(slope_deg)
+    if here == "lifted":
+        axle = _lifted_axle(analysis, slope_deg)
+        tips = "flips backwards" if axle == "front" else "tips forwards"
+        return "danger", f"STOP: {axle} axle lifts at {at}; the rig {tips}"
+    if here == "both":
+        return "danger", f"STOP: both axles slip at {at}; the rig cannot hold this grade"
+    fast = analysis.overdrive.overdriven_axle
+    if fast is None:
+        return "ok", "OK: no overdrive, no wind-up; nothing fights the grip"
+    if here == fast:
+        return "warn", f"SLIP FLAG: overdriven {fast} lets go first here, at {at}"
+    near = _nearest_fast_slip(analysis, slope_deg, fast)
+    if near is not None:
+        way = "up" if near > slope_deg else "down"
+        return "warn", (f"SLIP FLAG: overdriven {fast} lets go first from {units.angle(near)}"
+                        f" ({units.angle(abs(near - slope_deg))} {way})")
+    return "ok", f"OK: {OTHER[fast]} lets go first here; overdriven {fast} keeps its grip"
+
+
+def _overdrive_line(analysis: Analysis, units: Units) -> str:
+    od, rig = analysis.overdrive, analysis.rig
+    tyres = f"{units.number('length', rig.tire_dia_front_mm)}/{units.with_unit('length', rig.tire_dia_rear_mm)}"
+    if od.overdriven_axle is None:
+        return f"No overdrive, no wind-up (gears {od.gear_pct:+.1f}%, {tyres})"
+    return (f"{od.overdriven_axle.capitalize()} overdriven {abs(od.effective_pct):.1f}%"
+            f" (gears {od.gear_pct:+.1f}%, {tyres})")
+
+
+def _here_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
+    here = state_at(analysis, slope_deg)
+    how = "climbing" if analysis.load == "climb" else "no load"
+    head = f"At {units.slope(slope_deg)} {how}: "
+    if here in ("front", "rear"):
+        return head + f"{here} slips first, {OTHER[here]} holds"
+    if here == "none":
+        return head + "both axles grip"
+    if here == "both":
+        return head + "both axles slip"
+    return head + f"{_lifted_axle(analysis, slope_deg)} axle off the ground"
+
+
+def _away(angle: float, slope_deg: float, units: Units, above: str, below: str) -> str:
+    gap = angle - slope_deg
+    if abs(gap) < 0.05:
+        return "here"
+    return f"{units.angle(abs(gap))} {above if gap > 0 else below}"
+
+
+def _handover_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
+    h = handover_deg(analysis)
+    if analysis.overdrive.overdriven_axle is None:
+        return "Handover: none (no overdrive)"
+    if h is None:
+        return f"Handover: none below {units.angle(90)}"
+    return f"Handover {units.angle(h)}, " + _away(h, slope_deg, units, "above this slope", "below this slope")
+
+
+def _max_grade_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
+    m = analysis.angles_deg["max_grade"]
+    if m >= 90.0:
+        return f"Max grade: holds all the way to {units.angle(90)}"
+    gap = m - slope_deg
+    where = f"{units.angle(gap)} to go" if gap >= 0 else f"{units.angle(-gap)} past it"
+    return f"Max grade {units.angle(m)}, ends by {analysis.max_grade_limit}; {where}"
+
+
+def _lift_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
+    a = analysis.angles_deg
+    if slope_deg < 0 and a.get("rear_lift") is not None:
+        rl = a["rear_lift"]
+        return f"Rear lift {units.angle(rl)}, margin {units.angle(slope_deg - rl)}"
+    fl = a.get("front_lift")
+    if fl is None:
+        return f"Front lift: none below {units.angle(90)}"
+    return f"Front lift {units.angle(fl)}, margin {units.angle(fl - slope_deg)}"
+
+
+def _sidehill_line(analysis: Analysis, units: Units) -> str:
+    a = analysis.angles_deg
+    return f"Sidehill roll {units.angle(a['sidehill_roll'])}, slide {units.angle(a['sidehill_slide'])}"
+
+
+def compare_line(analysis: Analysis, baseline: Analysis, units: Units) -> str:
+    """How each named angle moved from the baseline, e.g. "handover +3.1 deg"."""
+    parts = []
+    for key, words in COMPARED:
+        now, was = analysis.angles_deg.get(key), baseline.angles_deg.get(key)
+        if now is None and was is None:
+            continue
+        if now is None:
+            parts.append(f"{words} gone")
+        elif was is None:
+            parts.append(f"{words} new {units.angle(now)}")
+        else:
+            parts.append(f"{words} {units.angle(now - was, signed=True)}")
+    return "vs baseline: " + (", ".join(parts) if parts else "no named angles")
+
+
+def status_view(analysis: Analysis, units: Units, baseline: Optional[Analysis] = None) -> StatusView:
+    """Everything the status pane shows for `analysis` at the setup's slope."""
+    slope = float(analysis.setup.terrain.slope_deg)
+    level, flag = flag_line(analysis, slope, units)
+    lines = (
+        _overdrive_line(analysis, units),
+        _here_line(analysis, slope, units),
+        _handover_line(analysis, slope, units),
+        _max_grade_line(analysis, slope, units),
+        _lift_line(analysis, slope, units),
+        _sidehill_line(analysis, units),
+    )
+    compare = compare_line(analysis, baseline, units) if baseline is not None else None
+    return StatusView(level, flag, lines, compare)

@@ -1,0 +1,36 @@
+"""The top line: program, setup name, file, the unsaved marker (a word, not only a colour) and units."""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.reactive import reactive
+from textual.widget import Widget
+
+
+class TitleBar(Widget):
+    """Repaints only when one of its own reactives changes, never with the rest of the screen."""
+
+    COMPONENT_CLASSES = {"title-bar--unsaved", "title-bar--right"}
+
+    setup_name: reactive[str] = reactive("")
+    file_label: reactive[str] = reactive("")
+    unsaved: reactive[bool] = reactive(False)
+    right: reactive[str] = reactive("")
+
+    def render(self) -> Text:
+        width = self.size.width
+        right = Text(self.right, self.get_component_rich_style("title-bar--right"))
+        room = max(width - right.cell_len - 1, 1)
+        marker = "* UNSAVED " if self.unsaved else ""
+        # the program's name goes first when the line is short; the setup name is cropped last
+        words = f"slopetune | {self.file_label} | {self.setup_name}"
+        if len(marker) + len(words) > room:
+            words = f"{self.file_label} | {self.setup_name}"
+        left = Text(no_wrap=True, overflow="crop")
+        if marker:
+            left.append(marker, self.get_component_rich_style("title-bar--unsaved"))
+        left.append(words)
+        left.truncate(room, overflow="crop", pad=True)
+        left.append(" ")
+        left.append_text(right)
+        return left
