@@ -148,3 +148,15 @@ def test_flag_words_match_the_reference_states_on_the_steep_side():
         else:
             assert expected == "front" and view.level == "warn" and "SLIP FLAG" in view.flag, (slope, view.flag)
         assert f"At {slope:g}\u00b0 climbing" in view.lines[1]
+
+
+def test_chart_text_does_not_depend_on_the_chart_drawn_before():
+    import engine
+    import numpy as np
+
+    setup = demo_setup().setup
+    wide = engine.analyse(setup, np.arange(-90.0, 91.0, 1.0))
+    heavy = engine.analyse(setup.with_value("rig.mass_g", 3000.0), np.arange(0.0, 91.0, 1.0))
+    first = plot_text(chart_data(heavy, Units()), 49, 14, ascii_only=False)
+    plot_text(chart_data(wide, Units(ascii_only=True), baseline=wide), 60, 20, ascii_only=True)
+    assert plot_text(chart_data(heavy, Units()), 49, 14, ascii_only=False) == first

@@ -1,10 +1,10 @@
 """The full-screen tuner: a setup form, the live load chart, the flag and the status words.
 
 State lives here (the setup, the file it came from, the baseline, the display units); each widget
-shows what the app hands it. A key in the form changes the setup and its value at once; the flag
-and the status words follow in the same frame, the chart one frame after them. While a key is held
-the words update at most 12 and the chart 5 times a second, always ending on the latest value, so
-a slow link never queues up frames. The modal screens (save-as, open, help, measuring, and the
+shows what the app hands it. A key in the form changes the setup and its value at once; a key on
+its own redraws the flag, the words and the chart in one frame. While a key is held the words
+update at most 12 times a second and the chart, one frame after them, 5 times, always ending on
+the latest value, so a slow link never queues up frames. The modal screens (save-as, open, help, measuring, and the
 course and plan screens when they are installed) are imported when first used.
 """
 
@@ -36,6 +36,7 @@ from .widgets.title_bar import TitleBar
 from .widgets.units import Units
 
 MIN_COLUMNS, MIN_ROWS = 60, 20
+HELD_KEY_GAP_S = 0.06  # edits closer than this come from a held key (auto-repeat is 25-33 Hz)
 WORDS_EVERY_S = 1 / 12
 CHART_EVERY_S = 1 / 5
 SLOPES_CLIMB = np.arange(0.0, 91.0, 1.0)
@@ -66,6 +67,10 @@ class Throttle:
     @property
     def pending(self) -> bool:
         return self._timer is not None
+
+    def mark(self) -> None:
+        """`run` was just called from elsewhere: count it for the rate."""
+        self._last = time.monotonic()
 
     def _trailing(self) -> None:
         self._timer = None
@@ -155,6 +160,7 @@ class SlopeTuneApp(App[int]):
         self.analysis: Optional[Analysis] = None
         self._baseline_analysis: Optional[Analysis] = None
         self._chart_pending = False
+        self._last_edit = -math.inf
         # A held key: the value moves every key, the words at most 12 times and the chart 5 times a
         # second, each with a last update that shows the final value; a slow link never queues frames.
         self.word_updates = Throttle(self, WORDS_EVERY_S, self._show_words)
@@ -182,7 +188,7 @@ class SlopeTuneApp(App[int]):
         self.status = s.query_one(StatusPane)
         self.form.focus()
         self._note(self._first_note, "warning" if self.loaded.warnings else "info")
-        self._recompute(baseline_too=True)
+        self._recompute(baseline_too=True, chart_now=False)  # first paint before plotext loads
         self._show_title()
 
     def get_key_display(self, binding: Binding) -> str:
@@ -200,20 +206,28 @@ class SlopeTuneApp(App[int]):
     def _slopes(self) -> np.ndarray:
         return SLOPES_BOTH if self.full_range else SLOPES_CLIMB
 
-    def _recompute(self, baseline_too: bool = False) -> None:
+    def _recompute(self, baseline_too: bool = False, chart_now: bool = True) -> None:
         """Analyse the setup and show it now (a deliberate action, not a held key)."""
         if baseline_too:
             self._baseline_analysis = (analyse(self.baseline.setup, self._slopes())
                                        if self.baseline is not None else None)
-        self._show_words()
+        self._update(chart_now)
 
     def _show_words(self) -> None:
-        """Analyse the latest setup, show the flag and the words, and book the chart after them."""
+        """A held key's update: the words now, the chart after them (at its own slower rate)."""
+        self._update(chart_now=False)
+
+    def _update(self, chart_now: bool) -> None:
+        """Analyse the latest setup; show the flag and the words, and the chart now or a frame later."""
         self.analysis = analyse(self.setup, self._slopes())
         view = status_view(self.analysis, self.units, self._baseline_analysis)
         self.flag.show(view.level, view.flag)
         self.status.view = view
-        if not self._chart_pending:
+        self.word_updates.mark()
+        if chart_now:
+            self.chart_updates.mark()
+            self._push_chart()
+        elif not self._chart_pending:
             self._chart_pending = True
             self.call_after_refresh(self._chart_after_words)
 
@@ -255,7 +269,14 @@ class SlopeTuneApp(App[int]):
         self.setup = message.setup
         if self.status.note[1] != "error":
             self._note("")  # a note has been read by the next key; give its room back to the chart
-        self.word_updates()
+        now = time.monotonic()
+        held = now - self._last_edit < HELD_KEY_GAP_S or self.word_updates.pending
+        self._last_edit = now
+        if held:
+            self.word_updates()  # words at their rate, the chart after them at its own
+        else:
+            self._update(chart_now=True)  # one key on its own: words and chart in one frame
+        self.form.show_changes()
         self._show_title()
         if message.note:
             self._note(message.note)

@@ -233,7 +233,7 @@ def toggle_drive_mode(setup: Setup) -> Edit:
     """Switch between an overdrive percentage and gear stages that give the same ratio."""
     d = setup.driveline
     if d.uses_stages:
-        pct = _round(gear_overdrive_pct(d.front_stages, d.rear_stages))
+        pct = round(gear_overdrive_pct(d.front_stages, d.rear_stages), 3)  # 0.001 %: far below any tyre
         new = replace(d, overdrive_pct=pct, front_stages=None, rear_stages=None)
         return Edit(replace(setup, driveline=new), note=f"overdrive set as {pct:g} % from the stages",
                     structural=True)

@@ -1,7 +1,8 @@
 """The setup form: one row per setup key, stepped with the arrow keys or typed into.
 
 The form keeps the setup it shows and updates it at once on every key, so a burst of steps always
-starts from the latest value; each change goes up as `SetupForm.Edited`. What each key does to the
+starts from the latest value; each change goes up as `SetupForm.Edited`, and the new value is drawn
+when the app has updated the words and the chart too (`show_changes`). What each key does to the
 setup lives in `form_fields` (no widget code there); this module only draws rows and routes keys.
 """
 
@@ -13,9 +14,10 @@ from typing import ClassVar, Optional
 from rich.text import Text
 from textual import events
 from textual.binding import Binding, BindingType
-from textual.containers import VerticalScroll
+from textual.geometry import Region, Size
 from textual.message import Message
-from textual.widget import Widget
+from textual.scroll_view import ScrollView
+from textual.strip import Strip
 
 from engine import Setup
 
@@ -30,7 +32,7 @@ MAX_TYPED = 80
 
 @dataclass(frozen=True)
 class RowView:
-    """What one row shows; rows repaint only when this changes."""
+    """What one row shows; a row repaints only when this changes."""
 
     text: str
     value: str = ""
@@ -42,89 +44,16 @@ class RowView:
     hint: Optional[str] = None  # what the less obvious keys do here, under the selected row
 
 
-class FormRow(Widget):
-    """One line of the form; a second for a refused value's reason or, when selected, a hint."""
+class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
+    """Every key of the setup; Up/Down choose a row, Left/Right step it, digits start typing.
 
-    COMPONENT_CLASSES = {"form-row--value", "form-row--inherited", "form-row--edit", "form-row--error", "form-row--hint",
-                         "form-row--unit"}
+    One widget draws every row line by line (Textual's line API): a step repaints only the lines
+    of the rows whose text changed, and forty-odd rows cost no more memory than one widget.
+    """
 
-    def __init__(self, row: ff.Row, view: RowView, ascii_only: bool) -> None:
-        super().__init__(classes=f"-{row.kind}")
-        self.row = row
-        self.ascii_only = ascii_only
-        self._view = view
-        self.set_class(view.selected, "-selected")
-
-    @property
-    def view(self) -> RowView:
-        return self._view
-
-    def show(self, view: RowView) -> None:
-        if view == self._view:
-            return
-        grows = self._second(view) != self._second(self._view)
-        self._view = view
-        self.set_class(view.selected, "-selected")
-        self.refresh(layout=grows)
-
-    def get_content_height(self, container, viewport, width: int) -> int:
-        """One line, plus the wrapped reason when a value was refused (measured at `width`)."""
-        second = self._second(self._view)
-        if second is None:
-            return 1
-        return 1 + len(second.wrap(self.app.console, max(width, 1)))
-
-    def _second(self, view: RowView) -> Optional[Text]:
-        """The line under the row: the reason a value was refused (first), else the hint."""
-        if view.error:
-            return Text(f"  ! {view.error}", self.get_component_rich_style("form-row--error"))
-        if view.hint:
-            return Text(f"  {view.hint}", self.get_component_rich_style("form-row--hint"))
-        return None
-
-    def render(self) -> Text:
-        width = max(self.size.width, 1)
-        text = self._first_line(width)
-        text.truncate(width, overflow="crop")
-        second = self._second(self._view)
-        if second is not None:
-            text.append("\n")
-            text.append_text(second)
-        return text
-
-    def _first_line(self, width: int) -> Text:
-        v, row = self._view, self.row
-        if row.kind == "heading":
-            rule = "-" if self.ascii_only else "\u2500"
-            return Text(f"{rule * 2} {v.text} ".ljust(width, rule))
-        mark = ">" if v.selected else " "
-        text = Text(no_wrap=False, overflow="fold")
-        if row.kind in ("add_ballast", "add_stage"):
-            text.append(f"{mark}{v.text}")
-            return text
-        label_w = 15 if width >= 28 else max(8, width // 2)
-        text.append(f"{mark}{v.text[:label_w - 1]:<{label_w - 1}} ")
-        room = max(width - label_w - 1, 4)
-        if v.editing is not None:
-            typed = v.editing[-(room - 2):] if room > 3 else v.editing
-            text.append(f"{typed}_", self.get_component_rich_style("form-row--edit"))
-        elif row.kind in ("text", "info"):
-            shown = v.value if len(v.value) <= room else v.value[: max(room - 3, 1)] + "..."
-            text.append(shown, self.get_component_rich_style("form-row--value"))
-        elif row.kind != "number":
-            text.append(f"{v.value[:room]:>{room}}", self.get_component_rich_style("form-row--value"))
-        else:
-            unit = v.unit if v.unit in ("", "\u00b0") else f" {v.unit}"
-            value_w = max(room - 4, 4)
-            shown = f"={v.value}" if v.inherited else v.value
-            style = "form-row--inherited" if v.inherited else "form-row--value"
-            text.append(f"{shown:>{value_w}}", self.get_component_rich_style(style))
-            text.append(unit, self.get_component_rich_style("form-row--unit"))
-        return text
-
-
-class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
-    """Every key of the setup; Up/Down choose a row, Left/Right step it, digits start typing."""
+    COMPONENT_CLASSES = {"setup-form--heading", "setup-form--cursor", "setup-form--cursor-blurred",
+                         "setup-form--value", "setup-form--inherited", "setup-form--edit",
+                         "setup-form--error", "setup-form--hint", "setup-form--unit"}
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("up", "move(-1)", "Previous field", id="form.up", group=_FIELD_KEYS),
@@ -144,7 +73,8 @@ class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
     ]
 
     class Edited(Message):
-        """The form changed the setup (already checked against the loader's rules)."""
+        """The form changed the setup (checked against the loader's rules); the handler should
+        call `show_changes()` once it has updated the rest of the screen."""
 
         def __init__(self, setup: Setup, key: str, note: Optional[str] = None) -> None:
             super().__init__()
@@ -158,6 +88,11 @@ class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
         self.cursor = self._first_selectable(1)
         self.typed: Optional[str] = None
         self.errors: dict[str, str] = {}
+        self._views: list[RowView] = []
+        self._heights: list[int] = []
+        self._starts: list[int] = []  # first screen line of each row
+        self._line_rows: list[tuple[int, int]] = []  # (row, line within the row) for each line
+        self._strips: dict[tuple, Strip] = {}
 
     # ----- what the parent hands down
 
@@ -169,9 +104,27 @@ class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
             self.units = units
         self._set_setup(setup)
 
-    def compose(self):
-        for i, row in enumerate(self.rows):
-            yield FormRow(row, self._view(i), self.units.ascii_only)
+    def on_mount(self) -> None:
+        self._redraw(full=True)
+
+    def on_resize(self) -> None:
+        self._redraw(full=True)
+
+    def on_click(self, event: events.Click) -> None:
+        """A click puts the cursor on the row under the mouse."""
+        line = event.y + int(self.scroll_offset.y)
+        if 0 <= line < len(self._line_rows):
+            row = self._line_rows[line][0]
+            if self.rows[row].selectable:
+                self._move_to(row)
+
+    def on_focus(self) -> None:
+        self._strips.clear()
+        self.refresh()
+
+    def on_blur(self) -> None:
+        self._strips.clear()
+        self.refresh()
 
     # ----- queries
 
@@ -209,25 +162,118 @@ class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
                        self.errors.get(row.key) if row.key else None,
                        ff.hint(row, inherited, self.typed is not None) if selected else None)
 
-    def _redraw(self) -> None:
-        for i, widget in enumerate(self.query_children(FormRow)):
-            widget.show(self._view(i))
+    def _second(self, view: RowView) -> Optional[Text]:
+        """The line under a row: the reason a value was refused (first), else the hint."""
+        if view.error:
+            return Text(f"  ! {view.error}", self.get_component_rich_style("setup-form--error"))
+        if view.hint:
+            return Text(f"  {view.hint}", self.get_component_rich_style("setup-form--hint"))
+        return None
+
+    def _height(self, view: RowView, width: int) -> int:
+        second = self._second(view)
+        if second is None:
+            return 1
+        return 1 + len(second.wrap(self.app.console, max(width, 1)))
+
+    def _redraw(self, full: bool = False) -> None:
+        """Recompute every row's view; repaint the rows that changed (all when heights moved)."""
+        if not self.is_mounted:
+            return
+        width = self.size.width
+        views = [self._view(i) for i in range(len(self.rows))]
+        heights = [self._height(v, width) for v in views]
+        old = self._views
+        self._views = views
+        if full or heights != self._heights or len(old) != len(views):
+            self._heights = heights
+            self._starts, self._line_rows, y = [], [], 0
+            for i, h in enumerate(heights):
+                self._starts.append(y)
+                self._line_rows += [(i, k) for k in range(h)]
+                y += h
+            self._strips.clear()
+            self.virtual_size = Size(width, y)
+            self.refresh()
+            return
+        for i, (was, now) in enumerate(zip(old, views)):
+            if was != now:
+                self.refresh_lines(self._starts[i], heights[i])
 
     def _rebuild(self) -> None:
-        self.remove_children()
-        self.mount_all([FormRow(row, self._view(i), self.units.ascii_only) for i, row in enumerate(self.rows)])
+        self._redraw(full=True)
         self.call_after_refresh(self._scroll_to_cursor)
 
     def _scroll_to_cursor(self) -> None:
-        rows = list(self.query_children(FormRow))
-        if 0 <= self.cursor < len(rows):
-            # one row above the cursor too, so a heading stays in sight when moving up
-            self.scroll_to_widget(rows[max(self.cursor - 1, 0)], animate=False, immediate=True)
-            self.scroll_to_widget(rows[self.cursor], animate=False, immediate=True)
+        if not self._starts or self.cursor >= len(self._starts):
+            return
+        # the row above the cursor too, so a heading stays in sight when moving up
+        top = self._starts[max(self.cursor - 1, 0)]
+        bottom = self._starts[self.cursor] + self._heights[self.cursor]
+        self.scroll_to_region(Region(0, top, 1, bottom - top), animate=False, immediate=True)
+
+    def render_line(self, y: int) -> Strip:
+        width = self.size.width
+        line = y + int(self.scroll_offset.y)
+        if line >= len(self._line_rows):
+            return Strip.blank(width, self.rich_style)
+        i, sub = self._line_rows[line]
+        view = self._views[i]
+        key = (view, sub, width)
+        strip = self._strips.get(key)
+        if strip is None:
+            base = self.rich_style
+            if view.selected:
+                cursor = "setup-form--cursor" if self.has_focus else "setup-form--cursor-blurred"
+                base = base + self.get_component_rich_style(cursor)
+            text = self._first_line(self.rows[i], view, width) if sub == 0 else self._second(view)
+            if sub == 0:
+                text.truncate(width, overflow="crop")
+            else:
+                text = text.wrap(self.app.console, max(width, 1))[sub - 1]
+            strip = Strip(text.render(self.app.console, end=""))
+            strip = strip.adjust_cell_length(width).apply_style(base)
+            if len(self._strips) > 400:
+                self._strips.clear()
+            self._strips[key] = strip
+        return strip
+
+    def _first_line(self, row: ff.Row, v: RowView, width: int) -> Text:
+        style = self.get_component_rich_style
+        if row.kind == "heading":
+            rule = "-" if self.units.ascii_only else "\u2500"
+            return Text(f"{rule * 2} {v.text} ".ljust(width, rule), style("setup-form--heading"))
+        mark = ">" if v.selected else " "
+        text = Text(no_wrap=True, overflow="crop")
+        if row.kind in ("add_ballast", "add_stage"):
+            text.append(f"{mark}{v.text}")
+            return text
+        label_w = 15 if width >= 28 else max(8, width // 2)
+        text.append(f"{mark}{v.text[:label_w - 1]:<{label_w - 1}} ")
+        room = max(width - label_w - 1, 4)
+        if v.editing is not None:
+            typed = v.editing[-(room - 2):] if room > 3 else v.editing
+            text.append(f"{typed}_", style("setup-form--edit"))
+        elif row.kind in ("text", "info"):
+            shown = v.value if len(v.value) <= room else v.value[: max(room - 3, 1)] + "..."
+            text.append(shown, style("setup-form--value"))
+        elif row.kind != "number":
+            text.append(f"{v.value[:room]:>{room}}", style("setup-form--value"))
+        else:
+            unit = v.unit if v.unit in ("", "\u00b0") else f" {v.unit}"
+            value_w = max(room - 4, 4)
+            shown = f"={v.value}" if v.inherited else v.value
+            text.append(f"{shown:>{value_w}}", style("setup-form--inherited" if v.inherited else "setup-form--value"))
+            text.append(unit, style("setup-form--unit"))
+        return text
 
     # ----- changing the setup
 
-    def _set_setup(self, setup: Setup) -> None:
+    def show_changes(self) -> None:
+        """Repaint the rows whose value changed; the app calls this with the rest of its update."""
+        self._redraw()
+
+    def _set_setup(self, setup: Setup, draw: bool = True) -> None:
         key = self.row.key if self.rows else ""
         same_shape = ff.shape(setup) == ff.shape(self.setup)
         self.setup = setup
@@ -241,7 +287,7 @@ class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
                 self.cursor = self._next_selectable(self.cursor, 1)
             if self.is_mounted:
                 self._rebuild()
-        elif self.is_mounted:
+        elif self.is_mounted and draw:
             self._redraw()
 
     def _apply(self, edit: ff.Edit) -> None:
@@ -254,7 +300,9 @@ class SetupForm(VerticalScroll, can_focus=True, inherit_bindings=False):
         if edit.setup == self.setup and not edit.note:
             self._redraw()
             return
-        self._set_setup(edit.setup)
+        # The new value is drawn when the app has updated the words and the chart too
+        # (`show_changes`), so one frame carries all three instead of two frames apart.
+        self._set_setup(edit.setup, draw=False)
         self.post_message(self.Edited(edit.setup, key, edit.note))
 
     # ----- cursor
