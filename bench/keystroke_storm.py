@@ -4,8 +4,9 @@ Run: python bench/keystroke_storm.py [--storms 200] [--seed 313]
 Goal: every storm ends with the tuner running and, at every check, the setup on screen (each form
 row's value, the title) equal to the setup the engine analysed, and the status words, flag and
 chart equal to what that analysis gives. A failure prints the seed, the storm number and its keys.
-The chart takes new data one frame after the words (the tuner's design, so a held key never
-queues chart builds): a check first waits, at most 2 s, for that frame.
+The tuner throttles a held key by design (the words follow at most 12 times and the chart 5 times a
+second, each with a trailing update, the chart a frame after the words): a check first waits, at
+most 2 s, until no update is owed, and an update still owed after 2 s is a failure too.
 
 A storm is 10 to 40 keys drawn from arrows, digits, letters, Enter, Esc, Tab, editing keys and the
 app's own bindings (read from its BINDINGS), with terminal resizes between 40x12 and 160x50 mixed
@@ -36,8 +37,8 @@ from engine import load_setup  # noqa: E402
 from tui.app import SlopeTuneApp  # noqa: E402
 from tui.widgets import form_fields as ff  # noqa: E402
 from tui.widgets.load_chart import chart_data  # noqa: E402
-from tui.widgets.setup_form import FormRow, SetupForm  # noqa: E402
-from tui.widgets.status_words import status_view  # noqa: E402
+from tui.widgets.setup_form import SetupForm  # noqa: E402
+from tui.status_words import status_view  # noqa: E402
 
 SOURCE = ROOT / "setups" / "marmot-overdrive.toml"
 LEFT_OUT = {"quit", "save_as", "open", "open_baseline"}  # quit, or a dialog that writes or opens files
@@ -86,16 +87,18 @@ def screen_problems(app) -> list[str]:
     form = app.form
     if form.setup != a.setup:
         out.append("the form shows another setup than the analysed one")
-    widgets = list(form.query_children(FormRow))
     rows = ff.build_rows(a.setup)
-    if [w.row for w in widgets] != rows:
-        out.append(f"form rows {len(widgets)} do not match the analysed setup's {len(rows)}")
-    for w in widgets:
-        if w.view.editing is not None or w.row.kind == "heading":
+    if form.rows != rows:
+        out.append(f"form has {len(form.rows)} rows, the analysed setup {len(rows)}")
+    drawn = form._views  # what each row line was last drawn from (the form draws them itself)
+    if len(drawn) != len(form.rows):
+        out.append(f"{len(drawn)} rows drawn of {len(form.rows)}")
+    for row, view in zip(form.rows, drawn):
+        if view.editing is not None or row.kind == "heading":
             continue
-        value, unit, inherited = ff.shown_value(a.setup, w.row, app.units)
-        if (w.view.value, w.view.unit, w.view.inherited) != (value, unit, inherited):
-            out.append(f"row {w.row.key or w.row.label!r} shows {w.view.value!r}, analysed {value!r}")
+        value, unit, inherited = ff.shown_value(a.setup, row, app.units)
+        if (view.value, view.unit, view.inherited) != (value, unit, inherited):
+            out.append(f"row {row.key or row.label!r} shows {view.value!r}, analysed {value!r}")
     base = app._baseline_analysis
     if (app.baseline is None) != (base is None) or (base is not None and base.setup != app.baseline.setup):
         out.append("baseline analysis does not match the baseline")
@@ -111,16 +114,22 @@ def screen_problems(app) -> list[str]:
     return out
 
 
-async def settle(app, pilot, limit_s: float = 2.0) -> list[str]:
-    """Let the tuner finish the frame: the chart takes its data one frame after the words (by design).
+def _updates_pending(app) -> bool:
+    """Whether the tuner still owes the screen an update: the words and the chart follow a held key
+    at their own rates (12 and 5 a second) with one trailing update each, and the chart comes a
+    frame after the words."""
+    throttles = [getattr(app, name, None) for name in ("word_updates", "chart_updates")]
+    return getattr(app, "_chart_pending", False) or any(t is not None and t.pending for t in throttles)
 
-    Returns a problem when the chart update is still pending after `limit_s` (it would never come)."""
+
+async def settle(app, pilot, limit_s: float = 2.0) -> list[str]:
+    """Let the tuner finish the updates it owes; a problem when they are still owed after `limit_s`."""
     await pilot.pause()
     waited = 0.0
-    while getattr(app, "_chart_pending", False) and waited < limit_s:
+    while _updates_pending(app) and waited < limit_s:
         await pilot.pause(0.02)
         waited += 0.02
-    return [f"chart update still pending after {limit_s:g} s"] if getattr(app, "_chart_pending", False) else []
+    return [f"screen update still owed after {limit_s:g} s"] if _updates_pending(app) else []
 
 
 @dataclass

@@ -10,7 +10,7 @@ from types import SimpleNamespace
 from tui.app_main import demo_setup, display_charset
 from tui.widgets import form_fields as ff
 from tui.widgets.load_chart import ASCII_FOLD, chart_data, plot_text
-from tui.widgets.units import Units
+from tui.units import Units
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -134,7 +134,7 @@ def _reference_state(setup, slope_deg):
 def test_flag_words_match_the_reference_states_on_the_steep_side():
     import engine
 
-    from tui.widgets.status_words import status_view
+    from tui.status_words import status_view
 
     base = demo_setup().setup
     for slope in (10.0, 40.0, 45.0, 60.0, 70.0):

@@ -31,9 +31,9 @@ from engine import Analysis, LoadedSetup, Setup, SetupError, analyse, load_setup
 from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
 from .widgets.status_pane import FlagLine, StatusPane
-from .widgets.status_words import status_view
+from .status_words import status_view
 from .widgets.title_bar import TitleBar
-from .widgets.units import Units
+from .units import Units
 
 MIN_COLUMNS, MIN_ROWS = 60, 20
 HELD_KEY_GAP_S = 0.06  # edits closer than this come from a held key (auto-repeat is 25-33 Hz)

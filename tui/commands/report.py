@@ -10,7 +10,8 @@ import numpy as np
 
 from engine import SetupError, analyse, load_setup
 
-from ..verdict import verdict
+from ..status_words import status_view
+from ..units import Units
 
 HELP = """\
 Analyse one setup over a range of slopes.
@@ -127,8 +128,9 @@ def report_text(a) -> str:
     out.append(line(f"max grade (ends by {a.max_grade_limit})", "max_grade"))
     out.append("")
     out.append(f"Verdict at the setup's slope ({a.setup.terrain.slope_deg:g} deg):")
-    for v in verdict(a, ascii_only=True):
-        out.append(f"  {v.text}")
+    view = status_view(a, Units(ascii_only=True))
+    for text in (view.flag,) + view.lines:
+        out.append(f"  {text}")
     out.append("")
     load = "steady climb" if a.load == "climb" else "no load"
     out.append(f"Load table ({load}; forces in g, + up-slope):")

@@ -16,7 +16,7 @@ from engine import BallastItem, Setup, check_value
 from engine.overdrive import gear_overdrive_pct
 from engine.setup_model import cross_field_problems
 
-from .units import Units
+from ..units import Units
 
 # Fine steps per quantity, metric; the coarse step is ten of them.
 STEPS = {"mass": 5.0, "length": 1.0, "pct": 0.5, "deg": 1.0, "mu": 0.05, "rr": 0.01, "teeth": 1, "accel": 0.05}

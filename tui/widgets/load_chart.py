@@ -22,7 +22,7 @@ from textual.widget import Widget
 
 from engine import Analysis
 
-from .units import Units
+from ..units import Units
 
 # plotext draws in these standard colours; `render` swaps them for the theme's styles, so the
 # numbers are tags, not colours.

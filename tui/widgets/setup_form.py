@@ -22,7 +22,7 @@ from textual.strip import Strip
 from engine import Setup
 
 from . import form_fields as ff
-from .units import Units
+from ..units import Units
 
 EDIT_CHARS = set("0123456789.-+")
 _FIELD_KEYS = Binding.Group("field", compact=True)

@@ -13,7 +13,7 @@ from textual.geometry import Region
 from textual.reactive import reactive
 from textual.widget import Widget
 
-from .status_words import StatusView
+from ..status_words import StatusView
 
 
 class FlagLine(Widget):
