@@ -22,7 +22,7 @@ The equations are the textbook ones, written out again here from the sources:
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Optional
 
 from scipy.optimize import brentq
@@ -46,7 +46,6 @@ class RefRig:
     rolling_resistance: float = 0.0
     accel_g: float = 0.0
     load: str = "climb"
-    extra: dict = field(default_factory=dict, compare=False)
 
     @property
     def overdriven(self) -> Optional[str]:

@@ -2,7 +2,12 @@
 
 from __future__ import annotations
 
+import json
 import math
+import os
+import subprocess
+import sys
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -454,12 +459,6 @@ accel_g = 0.15
 
 
 def _json_report(text, folder, name):
-    import json
-    import os
-    import subprocess
-    import sys
-    from pathlib import Path
-
     root = Path(__file__).resolve().parent.parent
     path = folder / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
