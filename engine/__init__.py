@@ -4,18 +4,38 @@ Public entry points:
 
 - `load_setup(path)` -> `LoadedSetup` (raises `SetupError` with a one-line message)
 - `analyse(setup, slopes_deg)` -> `Analysis` (loads, traction states, named angles)
+
+Names are imported on first use (PEP 562), so reading and checking a setup file does not load
+numpy: the tuner paints its form before the first analysis.
 """
 
-from .analysis import Analysis, EffectiveRig, Sweep, analyse, effective_rig, setup_overdrive
-from .setup_file import LoadedSetup, SetupError, check_value, load_setup, parse_setup
-from .setup_model import (
-    BallastItem, Course, Driveline, FIELDS, Grip, Rig, SCHEMA_VERSION, Setup, Terrain,
-)
-from .traction import STATES
+from __future__ import annotations
 
-__all__ = [
-    "Analysis", "EffectiveRig", "Sweep", "analyse", "effective_rig", "setup_overdrive",
-    "LoadedSetup", "SetupError", "check_value", "load_setup", "parse_setup",
-    "BallastItem", "Course", "Driveline", "FIELDS", "Grip", "Rig", "SCHEMA_VERSION", "Setup", "Terrain",
-    "STATES",
-]
+import importlib
+
+_HOME = {
+    "Analysis": "analysis", "EffectiveRig": "analysis", "Sweep": "analysis", "analyse": "analysis",
+    "effective_rig": "analysis", "setup_overdrive": "analysis",
+    "LoadedSetup": "setup_file", "SetupError": "setup_file", "check_value": "setup_file",
+    "load_setup": "setup_file", "parse_setup": "setup_file",
+    "BallastItem": "setup_model", "Course": "setup_model", "Driveline": "setup_model",
+    "FIELDS": "setup_model", "Grip": "setup_model", "Rig": "setup_model",
+    "SCHEMA_VERSION": "setup_model", "Setup": "setup_model", "Terrain": "setup_model",
+    "STATES": "traction",
+}
+
+__all__ = sorted(_HOME)
+
+
+def __getattr__(name: str):
+    try:
+        module = _HOME[name]
+    except KeyError:
+        raise AttributeError(f"module 'engine' has no attribute {name!r}") from None
+    value = getattr(importlib.import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return __all__

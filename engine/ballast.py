@@ -8,7 +8,7 @@ References
 
 from __future__ import annotations
 
-import numpy as np
+import math
 
 
 def combined_cg(mass_g, x_mm, z_mm):
@@ -16,9 +16,9 @@ def combined_cg(mass_g, x_mm, z_mm):
 
     Parameters
     ----------
-    mass_g : array_like
+    mass_g : sequence of float
         Masses; negative for parts removed. [g]
-    x_mm, z_mm : array_like
+    x_mm, z_mm : sequence of float
         Positions of each mass along and above the ground. [mm]
 
     Returns
@@ -28,13 +28,15 @@ def combined_cg(mass_g, x_mm, z_mm):
 
     Notes
     -----
-    ``x = Σ m_i x_i / Σ m_i``, likewise for ``z`` [1]_.
+    ``x = Σ m_i x_i / Σ m_i``, likewise for ``z`` [1]_. A rig has a handful of items, so this is
+    plain Python (``math.fsum``, exactly rounded): checking a file then never loads numpy.
     """
-    m = np.asarray(mass_g, dtype=float)
-    total = float(m.sum())
-    with np.errstate(divide="ignore", invalid="ignore"):
-        x = float(np.dot(m, np.asarray(x_mm, dtype=float)) / total) if total != 0 else float("nan")
-        z = float(np.dot(m, np.asarray(z_mm, dtype=float)) / total) if total != 0 else float("nan")
+    m = [float(v) for v in mass_g]
+    total = math.fsum(m)
+    if total == 0:
+        return total, float("nan"), float("nan")
+    x = math.fsum(mi * float(xi) for mi, xi in zip(m, x_mm)) / total
+    z = math.fsum(mi * float(zi) for mi, zi in zip(m, z_mm)) / total
     return total, x, z
 
 
