@@ -23,7 +23,7 @@ from . import slope_statics as st
 from .ballast import combine_ballast
 from .overdrive import OverdriveFigures, gear_overdrive_pct, overdrive_figures
 from .setup_model import Setup
-from .traction import BOTH, HOLDING, LIFTED, STATES, TractionState, required_force_g, traction_state
+from .traction import HOLDING, LIFTED, STATES, TractionState, required_force_g, traction_state
 
 
 @dataclass(frozen=True)

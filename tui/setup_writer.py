@@ -11,7 +11,6 @@ from __future__ import annotations
 import os
 import secrets
 
-from dataclasses import replace
 from pathlib import Path
 from typing import Optional
 

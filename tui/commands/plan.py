@@ -211,27 +211,33 @@ def lever_words(lever, setup) -> str:
     return f"tyre compound (mu_static), {lo:g} to {hi:g}"
 
 
-def change_words(p: Plan) -> str:
-    """The change itself as an instruction."""
+def change_words(p: Plan, short: bool = False) -> str:
+    """The change itself as an instruction; `short` fits one line of the plan screen."""
     lever, v, s = p.lever, p.value, p.before.setup
     if isinstance(lever, AddBallast):
         verb = "Add" if v >= 0 else "Remove"
         return f"{verb} {lever_number(abs(v), lever.step)} g at x {lever.x_mm:g} mm, z {lever.z_mm:g} mm"
     if isinstance(lever, MoveBallast):
         item = s.rig.ballast[lever.index]
-        return (f"Move ballast item {lever.index + 1} ({item.name}) from x {lever_number(p.start_value, lever.step)} "
+        what = f"item {lever.index + 1}" if short else f"ballast item {lever.index + 1} ({item.name})"
+        return (f"Move {what} from x {lever_number(p.start_value, lever.step)} "
                 f"to x {lever_number(v, lever.step)} mm")
     if isinstance(lever, CgHeight):
         word = "Raise" if v >= 0 else "Lower"
         return (f"{word} the CG by {lever_number(abs(v), lever.step)} mm "
                 f"(to {lever_number(s.rig.cg_height_mm + v, lever.step)} mm)")
     if isinstance(lever, Overdrive):
+        if short:
+            return f"Gear overdrive {p.start_value:.2f} -> {lever_number(v, lever.step)} %"
         eff = p.after.overdrive.effective_pct
         stages = " (replaces the gear stages: pick gears that give it)" if s.driveline.uses_stages else ""
         return (f"Set the gear overdrive to {lever_number(v, lever.step)} % (now {p.start_value:.2f} %; "
                 f"{round(eff, 2) + 0.0:+.2f} % with the tyres){stages}")
+    now = lever_number(p.start_value, lever.step, False)
+    if short:
+        return f"Tyres with mu_static {lever_number(v, lever.step, False)} (now {now})"
     g = p.setup.grip
-    return (f"Use tyres with mu_static {lever_number(v, lever.step, False)} (now {lever_number(p.start_value, lever.step, False)}; "
+    return (f"Use tyres with mu_static {lever_number(v, lever.step, False)} (now {now}; "
             f"mu_kinetic {g.mu_kinetic:.3f})")
 
 

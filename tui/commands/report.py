@@ -96,7 +96,8 @@ def report_dict(a) -> dict:
     }
 
 
-def _fmt(x, width=8, digits=0):
+def table_cell(x, width=8, digits=0) -> str:
+    """A right-aligned number for the text tables; "-" where there is none."""
     if x is None or not math.isfinite(x):
         return f"{'-':>{width}}"
     return f"{round(float(x), digits) + 0.0:>{width}.{digits}f}"  # + 0.0: no "-0"
@@ -138,9 +139,9 @@ def report_text(a) -> str:
                f" {'wind-up':>8} {'reserve':>8}  state")
     s, t = a.sweep, a.sweep.traction
     for i, slope in enumerate(s.slope_deg):
-        out.append(f"{slope:>6.1f} {_fmt(s.front_normal_g[i])} {_fmt(s.rear_normal_g[i])} {_fmt(s.required_g[i])}"
-                   f" {_fmt(t.front_force_g[i])} {_fmt(t.rear_force_g[i])} {_fmt(t.windup_g[i])}"
-                   f" {_fmt(t.reserve_g[i])}  {s.slipping[i]}")
+        out.append(f"{slope:>6.1f} {table_cell(s.front_normal_g[i])} {table_cell(s.rear_normal_g[i])} {table_cell(s.required_g[i])}"
+                   f" {table_cell(t.front_force_g[i])} {table_cell(t.rear_force_g[i])} {table_cell(t.windup_g[i])}"
+                   f" {table_cell(t.reserve_g[i])}  {s.slipping[i]}")
     out.append("")
     out.append("Static model: driveline wind-up loads gears, shafts and motors. Check on the bench, hands clear.")
     return "\n".join(out)

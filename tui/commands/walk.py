@@ -13,6 +13,8 @@ from engine import SetupError, load_setup
 from engine.course_walk import DEFAULT_STEP_MM, CourseWalk, state_words, walk_course
 from engine.setup_file import find_line
 
+from .report import table_cell as _fmt
+
 HELP = """\
 Walk the rig along the terrain profile in the file's [course] section, front and rear on
 different ground: pitch, the ground angle under each tyre, loads, which axle lets go first,
@@ -72,12 +74,6 @@ def walk_dict(w: CourseWalk) -> dict:
         "events": [{"kind": e.kind, "index": e.index, "rear_x_mm": _num(e.rear_x_mm),
                     "front_x_mm": _num(e.front_x_mm), "text": e.text} for e in w.events],
     }
-
-
-def _fmt(x, width, digits=0):
-    if x is None or not math.isfinite(x):
-        return f"{'-':>{width}}"
-    return f"{round(float(x), digits) + 0.0:>{width}.{digits}f}"  # + 0.0: no "-0"
 
 
 def _where(rear_x, front_x) -> str:

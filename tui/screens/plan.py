@@ -27,7 +27,7 @@ from engine.goal_seek import (
     angle_value_deg, plan,
 )
 
-from ..commands.plan import ANGLE_LABELS, angle_words, lever_number
+from ..commands.plan import ANGLE_LABELS, angle_words, change_words
 
 KEYS = "Enter: accept   Esc: discard   Up/Down: field   Left/Right: choose"
 # Typing settles for this long before the goal seek starts (a held key starts one, not dozens).
@@ -83,19 +83,7 @@ def _fmt(value: float) -> str:
 
 def short_change(p: Plan) -> str:
     """The change as a short instruction that fits one line of the screen."""
-    lever, v, step = p.lever, p.value, p.lever.step
-    if isinstance(lever, AddBallast):
-        verb = "Add" if v >= 0 else "Remove"
-        return f"{verb} {lever_number(abs(v), step)} g at x {lever.x_mm:g} mm, z {lever.z_mm:g} mm"
-    if isinstance(lever, MoveBallast):
-        return f"Move item {lever.index + 1} from x {lever_number(p.start_value, step)} to x {lever_number(v, step)} mm"
-    if isinstance(lever, CgHeight):
-        word = "Raise" if v >= 0 else "Lower"
-        h = p.before.setup.rig.cg_height_mm + v
-        return f"{word} the CG by {lever_number(abs(v), step)} mm (to {lever_number(h, step)} mm)"
-    if isinstance(lever, Overdrive):
-        return f"Gear overdrive {p.start_value:.2f} -> {lever_number(v, step)} %"
-    return f"Tyres with mu_static {lever_number(v, step, False)} (now {lever_number(p.start_value, step, False)})"
+    return change_words(p, short=True)
 
 
 class Choice(Static, can_focus=True):
