@@ -38,6 +38,7 @@ if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
 from engine import STATES, SetupError, analyse, check_value, load_setup, parse_setup  # noqa: E402
+from engine.setup_file import one_line  # noqa: E402
 from engine.setup_model import FIELDS, rule_for  # noqa: E402
 
 if sys.version_info >= (3, 11):
@@ -269,22 +270,23 @@ def _normalised(message: str) -> str:
 def check_error(exc: SetupError, path: str) -> None:
     """One line, starts with the file, names the key when the problem has one."""
     msg = str(exc)
-    assert "\n" not in msg and "\r" not in msg, f"message is not one line: {msg!r}"
+    assert msg == one_line(msg), f"message is not one line or holds control characters: {msg!r}"
     assert msg.startswith(path), f"message does not name the file {path!r}: {msg!r}"
     assert exc.reason.strip(), f"empty reason: {msg!r}"
     if exc.key is not None:
         # the key itself, or (for "give both" problems) its partner in the same section
-        section = exc.key.split(".")[0]
-        leaf = exc.key.split(".")[-1]
-        assert (exc.key in _normalised(msg) or re.search(rf"\b{re.escape(section)}\.\w", msg)
+        key = one_line(exc.key)  # control characters in a key are spelled out in the message
+        section = key.split(".")[0]
+        leaf = key.split(".")[-1]
+        assert (key in _normalised(msg) or re.search(rf"\b{re.escape(section)}\.\w", msg)
                 or (not leaf.isdigit() and re.search(rf"\b{re.escape(leaf)}\b", msg))), \
-            f"message does not name the key {exc.key!r}: {msg!r}"
+            f"message does not name the key {key!r}: {msg!r}"
 
 
 def check_loaded(setup, warnings) -> None:
     """A setup that loaded holds only legal values."""
     for w in warnings:
-        assert isinstance(w, str) and "\n" not in w, f"warning not one line: {w!r}"
+        assert isinstance(w, str) and w == one_line(w), f"warning not one line: {w!r}"
     r = setup.rig
     for key in ("mass_g", "wheelbase_mm", "front_bias_pct", "cg_height_mm", "track_mm",
                 "tire_dia_front_mm", "tire_dia_rear_mm"):
