@@ -76,6 +76,9 @@ def main(argv=None) -> int:
         return 2
     except BrokenPipeError:  # `slopetune report x | head`
         return 0
+    except OSError as exc:  # a save that failed (SaveError) or a file that vanished mid-run
+        print(f"slopetune: {exc}", file=sys.stderr)
+        return 2
 
 
 if __name__ == "__main__":
