@@ -393,4 +393,7 @@ def check_value(setup: Setup, key: str, value) -> Optional[str]:
     except (TypeError, ValueError, IndexError, AttributeError, KeyError) as exc:
         return str(exc)
     problems = cross_field_problems(candidate)
-    return problems[0][1] if problems else None
+    if not problems:
+        return None
+    other, message = problems[0]
+    return message if other == key else f"then {other} {message}"
