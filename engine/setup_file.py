@@ -258,7 +258,9 @@ class _Reader:
         course = self.course() if "course" in d else None
         setup = Setup(name=name, notes=notes, rig=rig, driveline=driveline, grip=grip, terrain=terrain, course=course)
         for key, message in cross_field_problems(setup):
-            self.fail(key, f"{key}: {message}")
+            value = setup.value(key)
+            shown = f"{key} = {_show(value)}" if isinstance(value, (int, float)) else key
+            self.fail(key, f"{shown}: {message}")
         return setup
 
     def _ballast_number(self, item, key, base, i):
