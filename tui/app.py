@@ -6,18 +6,23 @@ its own redraws the flag, the words and the chart in one frame. While a key is h
 update at most 12 times a second and the chart, one frame after them, 5 times, always ending on
 the latest value, so a slow link never queues up frames. The modal screens (save-as, open, help, measuring, and the
 course and plan screens when they are installed) are imported when first used.
+
+The first frame shows the title, a placeholder flag and the form before numpy, the analysis or
+plotext is even imported (together they cost more than Textual's whole start): the flag, the words
+and then the chart follow a frame or two later, as soon as the first analysis is done.
 """
 
 from __future__ import annotations
 
+import gc
 import importlib
 import math
 import time
 from dataclasses import dataclass
+from functools import lru_cache
 from pathlib import Path
-from typing import Callable, ClassVar, Iterable, Optional
+from typing import TYPE_CHECKING, Callable, ClassVar, Iterable, Optional
 
-import numpy as np
 from textual import on
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding, BindingType
@@ -26,21 +31,27 @@ from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
-from engine import Analysis, LoadedSetup, Setup, SetupError, analyse, load_setup
+from engine import LoadedSetup, Setup, SetupError, load_setup  # numpy-free: engine loads names lazily
 
 from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
 from .widgets.status_pane import FlagLine, StatusPane
-from .status_words import status_view
 from .widgets.title_bar import TitleBar
 from .units import Units
+
+if TYPE_CHECKING:
+    import numpy as np
+
+    from engine import Analysis
 
 MIN_COLUMNS, MIN_ROWS = 60, 20
 HELD_KEY_GAP_S = 0.06  # edits closer than this come from a held key (auto-repeat is 25-33 Hz)
 WORDS_EVERY_S = 1 / 12
 CHART_EVERY_S = 1 / 5
-SLOPES_CLIMB = np.arange(0.0, 91.0, 1.0)
-SLOPES_BOTH = np.arange(-90.0, 91.0, 1.0)
+# Slopes analysed and charted, 1 deg apart: the chart is 40-100 columns wide (80-200 braille dots),
+# and the named angles are found exactly by the engine, not read off this grid.
+SLOPE_SPANS = {False: (0.0, 90.0), True: (-90.0, 90.0)}
+WAIT_WORDS = "Working out the loads..."
 SHORT_CAUTION = "Static model: wind-up loads gears and motors; bench-test hands clear. F1: help"
 # grouped keys are drawn side by side: the slash keeps "Up/Dn" readable
 ASCII_KEYS = {"up": "Up", "down": "/Dn", "left": "Lt", "right": "/Rt", "shift+left": "S-Lt",
@@ -87,21 +98,33 @@ class Baseline:
     label: str  # "pinned" or the file it came from
 
 
+@lru_cache(maxsize=None)
+def slope_grid(full_range: bool) -> np.ndarray:
+    """The slopes every analysis covers [deg] (numpy is imported here, after the first frame)."""
+    import numpy as np
+
+    lo, hi = SLOPE_SPANS[full_range]
+    grid = np.arange(lo, hi + 1.0, 1.0)
+    grid.flags.writeable = False  # shared by every analysis
+    return grid
+
+
 class TunerScreen(Screen):
     """The tuner's one screen; a plain notice replaces it when the terminal is too small."""
 
-    def __init__(self, setup: Setup, units: Units) -> None:
+    def __init__(self, setup: Setup, units: Units, title: tuple[str, str, bool, str],
+                 note: tuple[str, str]) -> None:
         super().__init__(id="tuner")
-        self._setup, self._units = setup, units
+        self._setup, self._units, self._title, self._first_note = setup, units, title, note
 
     def compose(self) -> ComposeResult:
-        yield TitleBar(id="title")
-        yield FlagLine(id="flag")
+        yield TitleBar(*self._title, id="title")
+        yield FlagLine(WAIT_WORDS, id="flag")
         with Horizontal(id="body"):
             yield SetupForm(self._setup, self._units, id="form")
             with Vertical(id="right"):
                 yield LoadChart(ascii_only=self._units.ascii_only, id="chart")
-                yield StatusPane(id="status")
+                yield StatusPane(self._first_note, id="status")
         yield Static(f"Terminal too small: slopetune needs at least {MIN_COLUMNS}x{MIN_ROWS}.\n"
                      "Make the window larger; your setup is kept.", id="too-small", markup=False)
         yield Footer()
@@ -166,7 +189,9 @@ class SlopeTuneApp(App[int]):
         self.word_updates = Throttle(self, WORDS_EVERY_S, self._show_words)
         self.chart_updates = Throttle(self, CHART_EVERY_S, self._push_chart)
         self._first_note = loaded.warnings[0] if loaded.warnings else SHORT_CAUTION
-        self.main_screen = TunerScreen(self.setup, self.units)
+        self.resume_gc = False  # the starter paused the garbage collector for the first frame
+        self.main_screen = TunerScreen(self.setup, self.units, self._title_words(),
+                                       (self._first_note, "info"))
 
     # ----- set-up
 
@@ -188,8 +213,23 @@ class SlopeTuneApp(App[int]):
         self.status = s.query_one(StatusPane)
         self.form.focus()
         self._note(self._first_note, "warning" if self.loaded.warnings else "info")
-        self._recompute(baseline_too=True, chart_now=False)  # first paint before plotext loads
         self._show_title()
+        # the form first; numpy, the analysis and then plotext load after that frame
+        self.call_after_refresh(self._first_analysis)
+
+    def _first_analysis(self) -> None:
+        if self.analysis is None:  # no key has analysed the setup yet
+            self._recompute(baseline_too=True, chart_now=False)
+
+    def _resume_gc(self) -> None:
+        """After the first chart: collect start-up's garbage once, then keep the collector's later
+        passes off what start-up made (Textual, numpy and plotext live as long as the app; the
+        few start-up widgets Textual swaps out later, footer keys, simply stay in memory)."""
+        if self.resume_gc:
+            self.resume_gc = False
+            gc.collect()
+            gc.freeze()
+            gc.enable()
 
     def get_key_display(self, binding: Binding) -> str:
         """Plain key names on terminals without arrows in their font."""
@@ -204,11 +244,13 @@ class SlopeTuneApp(App[int]):
         return self.path is None or self.setup != self.saved_setup
 
     def _slopes(self) -> np.ndarray:
-        return SLOPES_BOTH if self.full_range else SLOPES_CLIMB
+        return slope_grid(self.full_range)
 
     def _recompute(self, baseline_too: bool = False, chart_now: bool = True) -> None:
         """Analyse the setup and show it now (a deliberate action, not a held key)."""
         if baseline_too:
+            from engine import analyse
+
             self._baseline_analysis = (analyse(self.baseline.setup, self._slopes())
                                        if self.baseline is not None else None)
         self._update(chart_now)
@@ -219,6 +261,12 @@ class SlopeTuneApp(App[int]):
 
     def _update(self, chart_now: bool) -> None:
         """Analyse the latest setup; show the flag and the words, and the chart now or a frame later."""
+        from engine import analyse  # after the first frame: numpy and the engine's sums load here
+
+        from .status_words import status_view
+
+        if self.baseline is not None and self._baseline_analysis is None:
+            self._baseline_analysis = analyse(self.baseline.setup, self._slopes())
         self.analysis = analyse(self.setup, self._slopes())
         view = status_view(self.analysis, self.units, self._baseline_analysis)
         self.flag.show(view.level, view.flag)
@@ -239,15 +287,18 @@ class SlopeTuneApp(App[int]):
         """Hand the chart the latest data; it repaints the lines that changed."""
         if self.analysis is not None:
             self.chart.show(chart_data(self.analysis, self.units, self._baseline_analysis))
+            if self.resume_gc:
+                self.call_after_refresh(self._resume_gc)  # plotext is drawn in that frame
 
-    def _show_title(self) -> None:
-        t = self.title_bar
-        t.setup_name = self.setup.name
-        t.file_label = self.path.name if self.path else "demo copy, not saved"
-        t.unsaved = self.unsaved
+    def _title_words(self) -> tuple[str, str, bool, str]:
+        """(setup name, file, unsaved, the right-hand words) for the title line."""
         base = f"  base: {self.baseline.label}" if self.baseline else ""
         span = "-90..90" if self.full_range else "0..90"
-        t.right = f"{self.units.name} {span}{base}"
+        return (self.setup.name, self.path.name if self.path else "demo copy, not saved", self.unsaved,
+                f"{self.units.name} {span}{base}")
+
+    def _show_title(self) -> None:
+        self.title_bar.show(*self._title_words())
 
     def _note(self, words: str, severity: str = "info") -> None:
         self.status.note = (words, "error" if severity == "error" else "info")

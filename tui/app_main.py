@@ -9,9 +9,9 @@ that), so a plain Linux console or a `LC_ALL=C` session shows a readable screen.
 from __future__ import annotations
 
 import codecs
+import gc
 import os
 import sys
-from importlib import resources
 from typing import Optional
 
 from engine import LoadedSetup, SetupError, load_setup, parse_setup
@@ -50,6 +50,8 @@ def display_charset(force_ascii: bool = False, environ=None, streams=None) -> tu
 
 def demo_setup() -> LoadedSetup:
     """The bundled demo as an unsaved copy: its text is kept (comments survive a save-as), no path."""
+    from importlib import resources
+
     text = resources.files("tui").joinpath("demo", DEMO_FILE).read_text(encoding="utf-8")
     setup, data, warnings = parse_setup(text, f"demo/{DEMO_FILE}")
     return LoadedSetup(None, setup, text, data, None, warnings)
@@ -90,9 +92,17 @@ def run_tuner(args) -> int:
     except SetupError as exc:
         print(f"slopetune: {exc}", file=sys.stderr)
         return 2
-    from .app import SlopeTuneApp  # after the files are read: a bad file never starts Textual
+    # Importing Textual and drawing the first frame make tens of thousands of lasting objects and
+    # little garbage: the collector's passes over them cost 10-20 ms of the start. The app
+    # collects once and turns it back on after its first chart (`SlopeTuneApp.resume_gc`).
+    gc.disable()
+    try:
+        from .app import SlopeTuneApp  # after the files are read: a bad file never starts Textual
 
-    driver = _folding_driver(charset) if plain and sys.platform != "win32" else None
-    app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver)
-    app.run()
+        driver = _folding_driver(charset) if plain and sys.platform != "win32" else None
+        app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver)
+        app.resume_gc = True
+        app.run()
+    finally:
+        gc.enable()
     return int(app.return_code or 0)

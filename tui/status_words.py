@@ -1,19 +1,20 @@
 """The status pane's words: what the analysis means at the setup's slope, in plain sentences.
 
 Pure functions of an `engine.Analysis` (and a baseline one): no widget code, so the wording can be
-tested on its own. The flag is a word ("SLIP FLAG", "STOP") as well as a colour.
+tested on its own. The flag is a word ("SLIP FLAG", "STOP") as well as a colour. numpy and the
+engine's traction states are imported on first use: the widgets import `StatusView` from here
+before the first frame, which needs neither.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Optional
-
-import numpy as np
-
-from engine import STATES, Analysis
+from typing import TYPE_CHECKING, Optional
 
 from .units import Units
+
+if TYPE_CHECKING:
+    from engine import Analysis
 
 # How far up or down the slope the flag looks for the overdriven axle becoming the one that slips.
 LOOKAHEAD_DEG = 3.0
@@ -39,16 +40,26 @@ def handover_deg(analysis: Analysis) -> Optional[float]:
 
 
 def state_at(analysis: Analysis, slope_deg: float) -> str:
+    import numpy as np
+
+    from engine import STATES
+
     return STATES[int(analysis.at(np.array([slope_deg])).traction.state[0])]
 
 
 def _lifted_axle(analysis: Analysis, slope_deg: float) -> str:
+    import numpy as np
+
     sweep = analysis.at(np.array([slope_deg]))
     return "front" if sweep.front_normal_g[0] <= 0 else "rear"
 
 
 def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optional[float]:
     """The nearest slope within +-LOOKAHEAD_DEG where the overdriven axle lets go first, else None."""
+    import numpy as np
+
+    from engine import STATES
+
     lo, hi = max(-90.0, slope_deg - LOOKAHEAD_DEG), min(90.0, slope_deg + LOOKAHEAD_DEG)
     probe = np.linspace(lo, hi, _LOOK_SAMPLES)
     states = analysis.at(probe).traction.state

@@ -22,7 +22,7 @@ from ..units import Units
 STEPS = {"mass": 5.0, "length": 1.0, "pct": 0.5, "deg": 1.0, "mu": 0.05, "rr": 0.01, "teeth": 1, "accel": 0.05}
 COARSE = 10
 LOAD_CHOICES = ("climb", "none")
-LOAD_WORDS = {"climb": "steady climb", "none": "no load (coast)"}
+LOAD_WORDS = {"climb": "steady climb", "none": "coast, no load"}  # 14 cells: fits the form
 DRIVE_WORDS = {False: "overdrive %", True: "gear stages"}
 # Stages offered when switching from a percentage: a one-stage pair whose ratio gives it.
 _STAGE_BASE_TEETH = 40

@@ -3,26 +3,33 @@
 Swap the chart library by rewriting this file: the rest of the tuner only calls
 `LoadChart.show(ChartData)` and `chart_data(...)`.
 
-The chart is built from the latest data only, cached on (data, size, styles): in `show()` (which
-the app calls at most once per frame, and only a few times a second while a key is held) to find
-the lines that changed and repaint only those, or in `render()` after a resize. plotext is
-imported on the first build, not at start-up (it costs 65-110 ms to import).
+Cheap on a slow board, in three ways. plotext draws everything but the marker at the setup's
+slope, cached on (data less that slope, size, styles), so stepping the slope, the value tuned most,
+runs no plotext at all: the marker is laid over the cached drawing where plotext itself would put
+it (under the curves and letters, a tick on each border). The widget draws line by line
+(Textual's line API) from strips made once per changed line, and marks only the changed cells of
+a line for repainting (Textual sends a line from its left edge to the last changed cell). And
+plotext (65-110 ms) and numpy are imported on the first build, after the first frame.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Optional
+import math
+from dataclasses import dataclass, replace
+from typing import TYPE_CHECKING, Optional
 
-import numpy as np
 from rich.style import Style
 from rich.text import Span, Text
-from textual.geometry import Region
+from textual.geometry import Region, Size
+from textual.strip import Strip
 from textual.widget import Widget
 
-from engine import Analysis
-
 from ..units import Units
+from .line_strips import changed_regions, text_strip
+from .style_cache import StyleCache
+
+if TYPE_CHECKING:
+    from engine import Analysis
 
 # plotext draws in these standard colours; `render` swaps them for the theme's styles, so the
 # numbers are tags, not colours.
@@ -36,6 +43,9 @@ ASCII_FOLD = str.maketrans({
     "\u251c": "+", "\u2524": "+", "\u252c": "+", "\u2534": "+", "\u253c": "+", "\u2022": "*",
     "\u00b7": ".",
 })
+# The marker at the setup's slope, as plotext draws a vertical line: in the canvas, and as a tick
+# on the top and bottom borders.
+SLOPE_MARK = {False: ("\u2502", "\u252c", "\u2534"), True: ("|", "+", "+")}
 MIN_WIDTH, MIN_HEIGHT = 24, 6
 NAMED_MARKS = (("B", "balance", "bal"), ("H", "handover", "hand"), ("L", "front lift", "lift"),
                ("N", "rear lift (nose over)", "nose"))
@@ -67,7 +77,7 @@ def _curves(analysis: Analysis, units: Units) -> tuple[Curves, float]:
     sweep = analysis.sweep
     touching = (sweep.front_normal_g > 0) & (sweep.rear_normal_g > 0)
     scale = units.factor("mass")
-    force = lambda a: tuple(np.round(a[touching] / scale, 3).tolist())  # noqa: E731
+    force = lambda a: tuple((a[touching] / scale).round(3).tolist())  # noqa: E731
     slopes = tuple(sweep.slope_deg[touching].tolist())
     return Curves(slopes, force(sweep.front_normal_g), force(sweep.rear_normal_g)), analysis.rig.mass_g / scale
 
@@ -92,15 +102,54 @@ def chart_data(analysis: Analysis, units: Units, baseline: Optional[Analysis] = 
 def nice_step(top: float, count: int) -> float:
     """A round tick step (1, 2, 2.5 or 5 times a power of ten) giving about `count` ticks up to `top`."""
     raw = max(top, 1e-9) / max(count, 1)
-    power = 10.0 ** np.floor(np.log10(raw))
+    power = 10.0 ** math.floor(math.log10(raw))
     for m in (1.0, 2.0, 2.5, 5.0, 10.0):
         if m * power >= raw:
             return m * power
     return 10.0 * power
 
 
+@dataclass(frozen=True)
+class Frame:
+    """Where plotext put the canvas in a drawing: the border rows and the canvas columns."""
+
+    top: int  # row of the top border
+    bottom: int  # row of the bottom border
+    left: int  # first column of the canvas
+    right: int  # column of the right border, one past the canvas
+
+    def column(self, x: float, lo: float, hi: float) -> int:
+        """The column plotext draws a vertical line at `x` in (its own rounding, from plotext 5)."""
+        from plotext._utility import get_matrix_data
+
+        return self.left + get_matrix_data([x], (lo, hi), self.right - self.left)[0]
+
+
+def find_frame(lines: list[str]) -> Optional[Frame]:
+    """The frame of plotext's box-drawn chart (before any ASCII folding); None if there is none."""
+    for top, line in enumerate(lines):
+        left = line.find("\u250c")
+        if left >= 0:
+            break
+    else:
+        return None
+    right = lines[top].find("\u2510", left)
+    bottom = next((y for y in range(top + 1, len(lines)) if lines[y][left:left + 1] == "\u2514"), None)
+    if right < 0 or bottom is None:
+        return None
+    return Frame(top, bottom, left + 1, right)
+
+
+@dataclass
+class Layer:
+    """The chart as plotext drew it without the slope marker, line by line, restyled and folded."""
+
+    lines: list[Text]
+    frame: Optional[Frame]
+
+
 class LoadChart(Widget):
-    """Adapter around plotext 5: `show(data)` stores the data; `render()` builds when it changed."""
+    """Adapter around plotext 5: `show(data)` hands it new data; it repaints the lines that changed."""
 
     COMPONENT_CLASSES = {"load-chart--front", "load-chart--rear", "load-chart--marks", "load-chart--slope",
                          "load-chart--base", "load-chart--axes"}
@@ -109,10 +158,19 @@ class LoadChart(Widget):
         super().__init__(name=name, id=id, classes=classes)
         self.ascii_only = ascii_only
         self._data: Optional[ChartData] = None
-        self._cache_key = None
-        self._cache: Optional[Text] = None
-        self._lines: Optional[list[Text]] = None  # the built chart, line by line, to find what changed
+        self._style_cache = StyleCache(self, "load-chart", (*_TAGS, "axes"), partial=True)
+        self._base = Style()  # the widget's own style, under every line
+        self._layer_key = None
+        self._layer: Optional[Layer] = None
+        self._lines_key = None  # (data, size, styles version) that `_lines` were drawn for
+        self._lines: list[Text] = []
+        self._strips: list[Optional[Strip]] = []
         self.builds = 0  # how many times plotext ran: lets tests check the coalescing
+
+    def refresh(self, *regions: Region, **kwargs) -> Widget:
+        if not regions and hasattr(self, "_style_cache"):
+            self._style_cache.invalidate()  # a full refresh: perhaps restyled (see StyleCache)
+        return super().refresh(*regions, **kwargs)
 
     @property
     def data(self) -> Optional[ChartData]:
@@ -123,46 +181,70 @@ class LoadChart(Widget):
         if data == self._data:
             return
         self._data = data
+        size = self.size
+        if not self.is_mounted or not size.width or self._lines_key is None:
+            self.refresh()
+            return
         old = self._lines
-        width = self.size.width
-        if not self.is_mounted or not width or old is None:
+        self._draw(size)  # once per frame at most, a few times a second while a key is held (see the app)
+        if len(old) != len(self._lines):
             self.refresh()
             return
-        self.render()  # builds now: this is already once per frame at most (see the app)
-        new = self._lines
-        if new is None or len(new) != len(old):
-            self.refresh()
-            return
-        for y, (was, now) in enumerate(zip(old, new)):
-            if was != now:
-                self.refresh(Region(0, y, width, 1))
+        regions = changed_regions(old, self._lines)
+        if regions:
+            self.refresh(*regions)
 
-    def _styles(self) -> dict[str, Style]:
-        return {name: self.get_component_rich_style(f"load-chart--{name}", partial=True)
-                for name in (*_TAGS, "axes")}
+    def _draw(self, size: Size) -> None:
+        """Make `_lines` for the current data and `size` (the widget's: Textual works it out anew
+        on each ask); strips are made again only for lines that changed."""
+        width, height = size
+        styles, self._base = self._style_cache.styles()
+        key = (self._data, width, height, self._style_cache.version)
+        if key == self._lines_key:
+            return
+        old, old_strips = self._lines, self._strips
+        if self._data is None:
+            lines = []
+        elif width < MIN_WIDTH or height < MIN_HEIGHT:
+            lines = [Text("chart needs more room", no_wrap=True, overflow="crop", end="")]
+        else:
+            lines = self._chart_lines(self._data, width, height, styles)
+        keep = len(old) == len(lines) and self._lines_key is not None and self._lines_key[1:] == key[1:]
+        self._strips = [old_strips[y] if keep and old[y] == line else None for y, line in enumerate(lines)]
+        self._lines, self._lines_key = lines, key
+
+    def _chart_lines(self, data: ChartData, width: int, height: int, styles: dict[str, Style]) -> list[Text]:
+        layer = self._layer_for(data, width, height - 1, styles)
+        lines = slope_overlay(layer, data, self.ascii_only, styles["slope"])
+        return [*lines, legend(data, width, self.ascii_only, styles)]
+
+    def _layer_for(self, data: ChartData, width: int, height: int, styles: dict[str, Style]) -> Layer:
+        """plotext's drawing without the slope marker: built again only when more than the slope changed
+        (or for every slope when there are no curves, as plotext then draws the marker itself)."""
+        shown = replace(data, slope_deg=0.0) if data.current.slope_deg else data
+        key = (shown, width, height, self.ascii_only, self._style_cache.version)
+        if key != self._layer_key:
+            self.builds += 1
+            self._layer = build_layer(data, width, height, self.ascii_only, styles)
+            self._layer_key = key
+        return self._layer
+
+    def render_line(self, y: int) -> Strip:
+        size = self.size
+        self._draw(size)
+        width = size.width
+        if y >= len(self._lines):
+            return Strip.blank(width, self._base)
+        strip = self._strips[y]
+        if strip is None:
+            strip = text_strip(self._lines[y], width, self._base, self.app.console)
+            self._strips[y] = strip
+        return strip
 
     def render(self) -> Text:
-        width, height = self.size
-        if self._data is None:
-            return Text("")
-        if width < MIN_WIDTH or height < MIN_HEIGHT:
-            self._lines = None
-            return Text("chart needs more room", no_wrap=True, overflow="crop")
-        styles = self._styles()
-        key = (self._data, width, height, self.ascii_only, tuple(styles.items()))
-        if key != self._cache_key:
-            self._cache = self._build(self._data, width, height, styles)
-            self._cache_key = key
-            self._lines = list(self._cache.split("\n", allow_blank=True))
-        return self._cache
-
-    def _build(self, data: ChartData, width: int, height: int, styles: dict[str, Style]) -> Text:
-        self.builds += 1
-        body = plot_text(data, width, height - 1, self.ascii_only)
-        chart = _restyle(Text.from_ansi(body, no_wrap=True, end=""), styles)
-        chart.append("\n")
-        chart.append_text(legend(data, width, self.ascii_only, styles))
-        return chart
+        """The whole chart as one text (what `render_line` draws, line by line)."""
+        self._draw(self.size)
+        return Text("\n").join(self._lines)
 
 
 def _line_markers(ascii_only: bool) -> tuple[str, str, str]:
@@ -172,8 +254,8 @@ def _line_markers(ascii_only: bool) -> tuple[str, str, str]:
     return "braille", "braille", "braille"
 
 
-def plot_text(data: ChartData, width: int, height: int, ascii_only: bool) -> str:
-    """plotext's ANSI text of the chart, `width` x `height` cells (colours are tags, see _TAGS)."""
+def _plotext(data: ChartData, width: int, height: int, ascii_only: bool, slope_line: bool) -> str:
+    """plotext's ANSI text of the chart, `width` x `height` cells, box lines not folded (colours are tags)."""
     import plotext as plt  # lazily: importing plotext is slow and the first frame does not need it
 
     front_m, rear_m, base_m = _line_markers(ascii_only)
@@ -187,10 +269,10 @@ def plot_text(data: ChartData, width: int, height: int, ascii_only: bool) -> str
     y_top = data.y_top * 1.08
     y_step = nice_step(data.y_top, max(2, min(5, (height - 4) // 2)))
     plt.ylim(0, y_top)
-    y_ticks = list(np.arange(0.0, y_top, y_step))
+    y_ticks = [i * y_step for i in range(math.ceil(y_top / y_step))]
     plt.yticks(y_ticks, [f"{t:g}" for t in y_ticks])
     step = 15 if hi - lo <= 90 else 30
-    ticks = list(range(int(np.ceil(lo / step) * step), int(hi) + 1, step))
+    ticks = list(range(math.ceil(lo / step) * step, int(hi) + 1, step))
     plt.xticks(ticks, [str(t) for t in ticks])
     if data.baseline is not None and data.baseline.slope_deg:
         b = data.baseline
@@ -200,7 +282,7 @@ def plot_text(data: ChartData, width: int, height: int, ascii_only: bool) -> str
     if c.slope_deg:
         plt.plot(list(c.slope_deg), list(c.front), marker=front_m, color=_TAGS["front"][0])
         plt.plot(list(c.slope_deg), list(c.rear), marker=rear_m, color=_TAGS["rear"][0])
-    if lo <= data.slope_deg <= hi:
+    if slope_line and lo <= data.slope_deg <= hi:
         plt.vline(data.slope_deg, _TAGS["slope"][0])
     for letter, angle in data.marks:
         plt.text(letter, angle, y_top, color=_TAGS["marks"][0], alignment="center")
@@ -210,10 +292,58 @@ def plot_text(data: ChartData, width: int, height: int, ascii_only: bool) -> str
         plt.text("R", c.slope_deg[-1], c.rear[-1] + y_top * 0.06, color=_TAGS["rear"][0], alignment="right")
     plt.xlabel("slope [deg]")
     plt.ylabel(f"normal force [{data.unit}]")
-    text = plt.build().rstrip("\n")
+    return plt.build().rstrip("\n")
+
+
+def _fold(text: str) -> str:
+    """Box lines as ASCII, the rest within Latin-1, one character for one."""
+    return text.translate(ASCII_FOLD).encode("latin-1", "replace").decode("latin-1")
+
+
+def plot_text(data: ChartData, width: int, height: int, ascii_only: bool) -> str:
+    """plotext's ANSI text of the whole chart, slope marker included (colours are tags, see _TAGS)."""
+    text = _plotext(data, width, height, ascii_only, slope_line=True)
+    return _fold(text) if ascii_only else text
+
+
+def build_layer(data: ChartData, width: int, height: int, ascii_only: bool, styles: dict[str, Style]) -> Layer:
+    """The chart without its slope marker: plotext draws when the curves have something to span
+    (an x axis without them would come out otherwise); else the marker is drawn by plotext too."""
+    on_curves = bool(data.current.slope_deg)
+    body = _plotext(data, width, height, ascii_only, slope_line=not on_curves)
+    lines = _restyle(Text.from_ansi(body, no_wrap=True, end=""), styles).split("\n", allow_blank=True)
+    frame = find_frame([line.plain for line in lines]) if on_curves else None
     if ascii_only:
-        text = text.translate(ASCII_FOLD).encode("latin-1", "replace").decode("latin-1")
-    return text
+        for line in lines:
+            line.plain = _fold(line.plain)
+    return Layer(list(lines), frame)
+
+
+def slope_overlay(layer: Layer, data: ChartData, ascii_only: bool, style: Style) -> list[Text]:
+    """The layer with the marker at the setup's slope where plotext would draw it: on the empty
+    cells of its column (curves and letters stay on top) and as a tick on the top and bottom border."""
+    lines = layer.lines
+    frame = layer.frame
+    lo, hi = data.x_range
+    if frame is None or not lo <= data.slope_deg <= hi:
+        return list(lines)
+    x = frame.column(data.slope_deg, lo, hi)
+    bar, top_tick, bottom_tick = SLOPE_MARK[ascii_only]
+    out = list(lines)
+    for y in range(frame.top, frame.bottom + 1):
+        line = lines[y]
+        plain = line.plain
+        if x >= len(plain):
+            continue
+        if y == frame.top or y == frame.bottom:
+            mark, spans = (top_tick if y == frame.top else bottom_tick), line.spans
+        elif plain[x] == " ":
+            mark, spans = bar, [*line.spans, Span(x, x + 1, style)]
+        else:
+            continue
+        out[y] = Text(plain[:x] + mark + plain[x + 1:], style=line.style, spans=spans, no_wrap=True,
+                      overflow="crop", end="")
+    return out
 
 
 def _restyle(text: Text, styles: dict[str, Style]) -> Text:

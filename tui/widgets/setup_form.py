@@ -11,6 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import ClassVar, Optional
 
+from rich.style import Style
 from rich.text import Text
 from textual import events
 from textual.binding import Binding, BindingType
@@ -22,6 +23,7 @@ from textual.strip import Strip
 from engine import Setup
 
 from . import form_fields as ff
+from .line_strips import text_strip
 from ..units import Units
 
 EDIT_CHARS = set("0123456789.-+")
@@ -93,6 +95,7 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         self._starts: list[int] = []  # first screen line of each row
         self._line_rows: list[tuple[int, int]] = []  # (row, line within the row) for each line
         self._strips: dict[tuple, Strip] = {}
+        self._laid_width = 0  # the width the rows were last laid out for
 
     # ----- what the parent hands down
 
@@ -108,7 +111,8 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         self._redraw(full=True)
 
     def on_resize(self) -> None:
-        self._redraw(full=True)
+        # the rows were laid out on mount for the CSS width: again only if the width differs
+        self._redraw(full=self.size.width != self._laid_width)
 
     def on_click(self, event: events.Click) -> None:
         """A click puts the cursor on the row under the mouse."""
@@ -117,6 +121,11 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             row = self._line_rows[line][0]
             if self.rows[row].selectable:
                 self._move_to(row)
+
+    def refresh(self, *regions: Region, **kwargs) -> SetupForm:
+        if not regions and hasattr(self, "_strips"):
+            self._strips.clear()  # a full refresh: perhaps restyled (a theme), so draw rows anew
+        return super().refresh(*regions, **kwargs)
 
     def on_focus(self) -> None:
         self._strips.clear()
@@ -165,9 +174,9 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
     def _second(self, view: RowView) -> Optional[Text]:
         """The line under a row: the reason a value was refused (first), else the hint."""
         if view.error:
-            return Text(f"  ! {view.error}", self.get_component_rich_style("setup-form--error"))
+            return Text(f"  ! {view.error}", self._part("setup-form--error"))
         if view.hint:
-            return Text(f"  {view.hint}", self.get_component_rich_style("setup-form--hint"))
+            return Text(f"  {view.hint}", self._part("setup-form--hint"))
         return None
 
     def _height(self, view: RowView, width: int) -> int:
@@ -178,15 +187,21 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
 
     def _redraw(self, full: bool = False) -> None:
         """Recompute every row's view; repaint the rows that changed (all when heights moved)."""
-        if not self.is_mounted:
+        if not self.is_attached:
             return
         width = self.size.width
+        if not width:
+            # on mount, before the first layout: lay the rows out for the CSS width, so the
+            # first frame already shows them (the resize that follows redoes it if need be)
+            css = self.styles.width
+            width = int(css.value) if css is not None and css.is_cells else 30
         views = [self._view(i) for i in range(len(self.rows))]
         heights = [self._height(v, width) for v in views]
         old = self._views
         self._views = views
         if full or heights != self._heights or len(old) != len(views):
             self._heights = heights
+            self._laid_width = width
             self._starts, self._line_rows, y = [], [], 0
             for i, h in enumerate(heights):
                 self._starts.append(y)
@@ -231,15 +246,18 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
                 text.truncate(width, overflow="crop")
             else:
                 text = text.wrap(self.app.console, max(width, 1))[sub - 1]
-            strip = Strip(text.render(self.app.console, end=""))
-            strip = strip.adjust_cell_length(width).apply_style(base)
+            strip = text_strip(text, width, base, self.app.console)
             if len(self._strips) > 400:
                 self._strips.clear()
             self._strips[key] = strip
         return strip
 
+    def _part(self, component: str) -> Style:
+        """A component's own style only: the row's base (the cursor's background) shows through."""
+        return self.get_component_rich_style(component, partial=True)
+
     def _first_line(self, row: ff.Row, v: RowView, width: int) -> Text:
-        style = self.get_component_rich_style
+        style = self._part
         if row.kind == "heading":
             rule = "-" if self.units.ascii_only else "\u2500"
             return Text(f"{rule * 2} {v.text} ".ljust(width, rule), style("setup-form--heading"))

@@ -1,33 +1,75 @@
 """The flag line and the status words under the chart.
 
-Both widgets repaint only when what they show changes (reactives compare the new value first), so
-stepping a value that does not move the words costs no bytes on the link.
+Both widgets repaint only what changed: they draw line by line (Textual's line API) from strips
+made once per changed line and mark only the changed cells for repainting, so stepping a value
+that does not move the words costs no bytes on the link.
 """
 
 from __future__ import annotations
 
 from typing import Optional
 
+from rich.segment import Segment
 from rich.text import Text
-from textual.geometry import Region
-from textual.reactive import reactive
+from textual.geometry import Region, Size
+from textual.strip import Strip
 from textual.widget import Widget
 
 from ..status_words import StatusView
+from .line_strips import changed_cells, changed_regions, text_strip
+from .style_cache import StyleCache
+
+
+def _wrapped(text: Text, width: int, console) -> list[Text]:
+    """`text` as screen lines `width` wide; rich's word wrap only when a line is too long."""
+    lines = text.split("\n", allow_blank=True)
+    if all(line.cell_len <= width for line in lines):
+        return list(lines)
+    return list(text.wrap(console, max(width, 1)))
 
 
 class FlagLine(Widget):
-    """One highlighted line: OK, SLIP FLAG or STOP, in words as well as colour."""
+    """One highlighted line: OK, SLIP FLAG or STOP, in words as well as colour.
 
-    level: reactive[str] = reactive("ok")
-    words: reactive[str] = reactive("")
+    Until the first analysis it says so, on a plain background ("wait"), so no colour claims
+    anything yet. A new level restyles the line (its class); new words repaint only the cells that
+    changed (usually the slope's digits).
+    """
 
-    def watch_level(self, old: str, new: str) -> None:
-        self.remove_class(f"-{old}")
-        self.add_class(f"-{new}")
+    def __init__(self, words: str = "", *, id: Optional[str] = None) -> None:
+        super().__init__(id=id, classes="-wait")
+        self.level = "wait"
+        self.words = words
+        self._style_cache = StyleCache(self, "flag-line", (), partial=False)
+        self._strip_key: Optional[tuple] = None
+        self._strip = Strip([])
+
+    def refresh(self, *regions: Region, **kwargs) -> Widget:
+        if not regions and hasattr(self, "_style_cache"):
+            self._style_cache.invalidate()  # a full refresh: perhaps restyled (see StyleCache)
+        return super().refresh(*regions, **kwargs)
 
     def show(self, level: str, words: str) -> None:
-        self.level, self.words = level, words
+        if level != self.level:
+            self.remove_class(f"-{self.level}")
+            self.add_class(f"-{level}")
+            self.level = level
+        if words != self.words:
+            cells = changed_cells(Text(self.words), Text(words))
+            self.words = words
+            if cells is not None and self.is_mounted:
+                self.refresh(Region(cells[0], 0, cells[1] - cells[0], 1))
+
+    def render_line(self, y: int) -> Strip:
+        width = self.size.width
+        base = self._style_cache.styles()[1]
+        if y > 0:
+            return Strip.blank(width, base)
+        key = (self.words, width, self._style_cache.version)
+        if key != self._strip_key:
+            self._strip = Strip([Segment(self.words)]).crop_extend(0, width, None).apply_style(base)
+            self._strip_key = key
+        return self._strip
 
     def render(self) -> Text:
         return Text(self.words, no_wrap=True, overflow="crop")
@@ -37,16 +79,24 @@ class StatusPane(Widget):
     """The plain-words status at the setup's slope, the baseline comparison and one note line.
 
     Not reactives: a new layout (the whole screen) is asked for only when the number of lines
-    changes, so a step that changes the words repaints this pane alone.
+    changes, so a step that changes the words repaints the lines that changed alone.
     """
 
     COMPONENT_CLASSES = {"status-pane--compare", "status-pane--note", "status-pane--error"}
 
-    def __init__(self, *, id: Optional[str] = None) -> None:
+    def __init__(self, note: tuple[str, str] = ("", "info"), *, id: Optional[str] = None) -> None:
         super().__init__(id=id)
         self._view: Optional[StatusView] = None
-        self._note: tuple[str, str] = ("", "info")
-        self._lines: Optional[list[Text]] = None  # what is on screen, wrapped, to find what changed
+        self._note = note
+        self._style_cache = StyleCache(self, "status-pane", ("compare", "note", "error"), partial=False)
+        self._lines_key = None  # (view, note, width, styles version) that `_lines` were wrapped for
+        self._lines: list[Text] = []  # the words wrapped to the width, as on screen
+        self._strips: list[Optional[Strip]] = []
+
+    def refresh(self, *regions: Region, **kwargs) -> Widget:
+        if not regions and hasattr(self, "_style_cache"):
+            self._style_cache.invalidate()  # a full refresh: perhaps restyled (see StyleCache)
+        return super().refresh(*regions, **kwargs)
 
     @property
     def view(self) -> Optional[StatusView]:
@@ -68,34 +118,59 @@ class StatusPane(Widget):
             self._note = note
             self._changed()
 
-    def _wrapped(self) -> Optional[list[Text]]:
-        width = self.size.width
-        return list(self.render().wrap(self.app.console, width)) if width and self.is_mounted else None
+    def _wrap(self, width: int) -> None:
+        """Wrap the words to `width`; keep the strips of the lines that did not change."""
+        self._style_cache.styles()
+        key = (self._view, self._note, width, self._style_cache.version)
+        if key == self._lines_key:
+            return
+        old, old_strips = self._lines, self._strips
+        same_width = self._lines_key is not None and self._lines_key[2:] == key[2:]
+        lines = _wrapped(self.render(), width, self.app.console) if self._view or self._note[0] else []
+        self._strips = [old_strips[y] if same_width and y < len(old) and old[y] == line else None
+                        for y, line in enumerate(lines)]
+        self._lines, self._lines_key = lines, key
 
     def _changed(self) -> None:
         """Repaint the lines whose words changed; a new layout only when the line count changes."""
-        old, new = self._lines, self._wrapped()
-        self._lines = new
-        if old is None or new is None or len(old) != len(new):
+        width = self.size.width
+        if not width or not self.is_mounted:
             self.refresh(layout=True)
             return
-        for y, (was, now) in enumerate(zip(old, new)):
-            if was != now:
-                self.refresh(Region(0, y, self.size.width, 1))
+        old = self._lines
+        self._wrap(width)
+        if len(old) != len(self._lines):
+            self.refresh(layout=True)
+            return
+        regions = changed_regions(old, self._lines)
+        if regions:
+            self.refresh(*regions)
 
-    def on_resize(self) -> None:
-        self._lines = self._wrapped()
+    def get_content_height(self, container: Size, viewport: Size, width: int) -> int:
+        self._wrap(width)
+        return len(self._lines)
+
+    def render_line(self, y: int) -> Strip:
+        width = self.size.width
+        self._wrap(width)
+        if y >= len(self._lines):
+            return Strip.blank(width, self._style_cache.styles()[1])
+        strip = self._strips[y]
+        if strip is None:
+            strip = text_strip(self._lines[y], width, self._style_cache.styles()[1], self.app.console)
+            self._strips[y] = strip
+        return strip
 
     def render(self) -> Text:
+        styles = self._style_cache.styles()[0]
         text = Text()
         if self._view is not None:
             text.append("\n".join(self._view.lines))
             if self._view.compare:
                 text.append("\n")
-                text.append(self._view.compare, self.get_component_rich_style("status-pane--compare"))
+                text.append(self._view.compare, styles["compare"])
         words, severity = self._note
         if words:
-            style = "status-pane--error" if severity == "error" else "status-pane--note"
             text.append("\n" if text else "")
-            text.append(words, self.get_component_rich_style(style))
+            text.append(words, styles["error" if severity == "error" else "note"])
         return text

@@ -17,6 +17,19 @@ class TitleBar(Widget):
     unsaved: reactive[bool] = reactive(False)
     right: reactive[str] = reactive("")
 
+    def __init__(self, setup_name: str = "", file_label: str = "", unsaved: bool = False, right: str = "",
+                 *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        # in the first frame already: set before mounting, nothing to repaint yet
+        self.set_reactive(TitleBar.setup_name, setup_name)
+        self.set_reactive(TitleBar.file_label, file_label)
+        self.set_reactive(TitleBar.unsaved, unsaved)
+        self.set_reactive(TitleBar.right, right)
+
+    def show(self, setup_name: str, file_label: str, unsaved: bool, right: str) -> None:
+        """New words; each reactive repaints the line only if it changed."""
+        self.setup_name, self.file_label, self.unsaved, self.right = setup_name, file_label, unsaved, right
+
     def render(self) -> Text:
         width = self.size.width
         right = Text(self.right, self.get_component_rich_style("title-bar--right"))
