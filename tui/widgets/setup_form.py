@@ -8,8 +8,7 @@ setup lives in `form_fields` (no widget code there); this module only draws rows
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import ClassVar, Optional
+from typing import ClassVar, NamedTuple, Optional
 
 from rich.style import Style
 from rich.text import Text
@@ -32,8 +31,7 @@ _STEP_KEYS = Binding.Group("step", compact=True)
 MAX_TYPED = 80
 
 
-@dataclass(frozen=True)
-class RowView:
+class RowView(NamedTuple):
     """What one row shows; a row repaints only when this changes."""
 
     text: str
@@ -245,7 +243,9 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             if sub == 0:
                 text.truncate(width, overflow="crop")
             else:
-                text = text.wrap(self.app.console, max(width, 1))[sub - 1]
+                wrapped = text.wrap(self.app.console, max(width, 1))
+                # a resize can draw before the rows are laid out again: a stale line is blank
+                text = wrapped[sub - 1] if sub - 1 < len(wrapped) else Text("")
             strip = text_strip(text, width, base, self.app.console)
             if len(self._strips) > 400:
                 self._strips.clear()
