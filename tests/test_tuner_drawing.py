@@ -11,7 +11,6 @@ from __future__ import annotations
 import asyncio
 import subprocess
 import sys
-from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -62,7 +61,7 @@ def test_slope_marker_over_the_cached_drawing_is_what_plotext_draws(ascii_only, 
         layer = lc.build_layer(data, width, height, ascii_only, STYLES)
         assert layer.frame is not None
         for slope in slopes:
-            shown = replace(data, slope_deg=slope)
+            shown = data._replace(slope_deg=slope)
             got = lc.slope_overlay(layer, shown, ascii_only, STYLES["slope"])
             want = _plotext_lines(shown, width, height, ascii_only)
             assert [_cells(line) for line in got] == [_cells(line) for line in want], (width, height, slope)
@@ -176,9 +175,9 @@ def test_without_curves_plotext_draws_the_marker_for_each_slope():
     first = chart._layer_for(data, 49, 14, STYLES)
     assert first.frame is None
     assert chart._layer_for(data, 49, 14, STYLES) is first and chart.builds == 1
-    moved = chart._layer_for(replace(data, slope_deg=60.0), 49, 14, STYLES)
+    moved = chart._layer_for(data._replace(slope_deg=60.0), 49, 14, STYLES)
     assert chart.builds == 2 and [line.plain for line in moved.lines] != [line.plain for line in first.lines]
-    want = _plotext_lines(replace(data, slope_deg=60.0), 49, 14, False)
+    want = _plotext_lines(data._replace(slope_deg=60.0), 49, 14, False)
     assert [line.plain for line in moved.lines] == [line.plain for line in want]
 
 

@@ -18,10 +18,9 @@ import gc
 import importlib
 import math
 import time
-from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
-from typing import TYPE_CHECKING, Callable, ClassVar, Iterable, Optional
+from typing import TYPE_CHECKING, Callable, ClassVar, Iterable, NamedTuple, Optional
 
 from textual import on
 from textual.app import App, ComposeResult, SystemCommand
@@ -92,8 +91,7 @@ class Throttle:
         self.run()
 
 
-@dataclass
-class Baseline:
+class Baseline(NamedTuple):
     setup: Setup
     label: str  # "pinned" or the file it came from
 

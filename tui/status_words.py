@@ -8,8 +8,7 @@ before the first frame, which needs neither.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import TYPE_CHECKING, Optional
+from typing import TYPE_CHECKING, NamedTuple, Optional
 
 from .units import Units
 
@@ -25,8 +24,7 @@ COMPARED = (("handover", "handover"), ("max_grade", "max grade"), ("front_lift",
             ("balance", "balance"))
 
 
-@dataclass(frozen=True)
-class StatusView:
+class StatusView(NamedTuple):
     level: str  # "ok", "warn" or "danger"
     flag: str  # the one line that carries the flag
     lines: tuple[str, ...]  # the plain-words status, one fact per line

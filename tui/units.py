@@ -7,7 +7,7 @@ Conversion factors are exact by definition: 1 in = 25.4 mm and 1 oz (avoirdupois
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from typing import NamedTuple
 
 MM_PER_IN = 25.4
 G_PER_OZ = 28.349523125
@@ -25,8 +25,7 @@ _QUANTITIES = {
 }
 
 
-@dataclass(frozen=True)
-class Units:
+class Units(NamedTuple):
     """How values are shown: `imperial` for oz and inches, `ascii_only` for 'deg' instead of the sign."""
 
     imperial: bool = False

@@ -9,11 +9,10 @@ numeric check goes through `engine.check_value`, the same rules the file loader 
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
-from typing import Optional
+from dataclasses import replace
+from typing import NamedTuple, Optional
 
 from engine import BallastItem, Setup, check_value
-from engine.overdrive import gear_overdrive_pct
 from engine.setup_model import cross_field_problems
 
 from ..units import Units
@@ -28,8 +27,7 @@ DRIVE_WORDS = {False: "overdrive %", True: "gear stages"}
 _STAGE_BASE_TEETH = 40
 
 
-@dataclass(frozen=True)
-class Row:
+class Row(NamedTuple):
     """One line of the form.
 
     kind: "heading", "number", "text", "load", "drive_mode", "add_ballast", "add_stage", "info".
@@ -53,8 +51,7 @@ class Row:
         return self.kind == "number"
 
 
-@dataclass(frozen=True)
-class Edit:
+class Edit(NamedTuple):
     setup: Setup
     error: Optional[str] = None
     note: Optional[str] = None  # a message for the status line (what was removed or added)
@@ -231,6 +228,8 @@ def clear(setup: Setup, row: Row) -> Edit:
 
 def toggle_drive_mode(setup: Setup) -> Edit:
     """Switch between an overdrive percentage and gear stages that give the same ratio."""
+    from engine.overdrive import gear_overdrive_pct  # not on the way to the first frame
+
     d = setup.driveline
     if d.uses_stages:
         pct = round(gear_overdrive_pct(d.front_stages, d.rear_stages), 3)  # 0.001 %: far below any tyre

@@ -15,8 +15,7 @@ plotext (65-110 ms) and numpy are imported on the first build, after the first f
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
-from typing import TYPE_CHECKING, Optional
+from typing import TYPE_CHECKING, NamedTuple, Optional
 
 from rich.style import Style
 from rich.text import Span, Text
@@ -51,8 +50,7 @@ NAMED_MARKS = (("B", "balance", "bal"), ("H", "handover", "hand"), ("L", "front 
                ("N", "rear lift (nose over)", "nose"))
 
 
-@dataclass(frozen=True)
-class Curves:
+class Curves(NamedTuple):
     """Front and rear normal force over the slopes where both axles touch. [display units]"""
 
     slope_deg: tuple[float, ...]
@@ -60,8 +58,7 @@ class Curves:
     rear: tuple[float, ...]
 
 
-@dataclass(frozen=True)
-class ChartData:
+class ChartData(NamedTuple):
     """Everything one chart shows; hashable so the built chart can be cached on it."""
 
     current: Curves
@@ -109,8 +106,7 @@ def nice_step(top: float, count: int) -> float:
     return 10.0 * power
 
 
-@dataclass(frozen=True)
-class Frame:
+class Frame(NamedTuple):
     """Where plotext put the canvas in a drawing: the border rows and the canvas columns."""
 
     top: int  # row of the top border
@@ -140,8 +136,7 @@ def find_frame(lines: list[str]) -> Optional[Frame]:
     return Frame(top, bottom, left + 1, right)
 
 
-@dataclass
-class Layer:
+class Layer(NamedTuple):
     """The chart as plotext drew it without the slope marker, line by line, restyled and folded."""
 
     lines: list[Text]
@@ -221,7 +216,7 @@ class LoadChart(Widget):
     def _layer_for(self, data: ChartData, width: int, height: int, styles: dict[str, Style]) -> Layer:
         """plotext's drawing without the slope marker: built again only when more than the slope changed
         (or for every slope when there are no curves, as plotext then draws the marker itself)."""
-        shown = replace(data, slope_deg=0.0) if data.current.slope_deg else data
+        shown = data._replace(slope_deg=0.0) if data.current.slope_deg else data
         key = (shown, width, height, self.ascii_only, self._style_cache.version)
         if key != self._layer_key:
             self.builds += 1
