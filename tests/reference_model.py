@@ -266,7 +266,8 @@ def handover_deg(rig: RefRig) -> Optional[float]:
 def max_grade_deg(rig: RefRig) -> tuple[float, str]:
     """Top of the holding range from 0 and what ends it ("slip" or "lift")."""
     fn = lambda t: holding_margin(rig, t) / rig.weight_g  # noqa: E731
-    if fn(0.0) < 0:
+    # a margin of exactly 0 at 0 deg that falls at once (e.g. throttle a_x = mu) holds 0 deg only
+    if fn(0.0) < 0 or (fn(0.0) <= 1e-12 and fn(SCAN_STEP_DEG) < 0):
         end = 0.0
     else:
         end = _crossing(fn, 0.0, 89.99, rising=False)

@@ -329,11 +329,13 @@ def test_underdriven_rig_turned_round_mirrors_overdriven_rig(bias_pct, h_frac, o
     assert engine.analyse(back).overdrive.overdriven_axle == "rear"
     assert_allclose(a.front_normal_g, b.rear_normal_g, rtol=1e-9, atol=1e-9)
     swap = {"front": "rear", "rear": "front"}
-    assert [swap.get(s, s) for s in a.slipping] == b.slipping
+    # a row exactly on a lift angle (N = 0 to rounding) may fall either side of it
+    c = (np.abs(a.front_normal_g) > 1e-9) & (np.abs(a.rear_normal_g) > 1e-9)
+    assert [swap.get(s, s) for s in np.array(a.slipping)[c]] == list(np.array(b.slipping)[c])
     ta, tb = a.traction, b.traction
-    assert_allclose(ta.front_force_g, tb.rear_force_g, rtol=1e-9, atol=1e-6)
-    assert_allclose(ta.rear_force_g, tb.front_force_g, rtol=1e-9, atol=1e-6)
-    assert_allclose(ta.reserve_g, tb.reserve_g, rtol=1e-9, atol=1e-6)
+    assert_allclose(ta.front_force_g[c], tb.rear_force_g[c], rtol=1e-9, atol=1e-6)
+    assert_allclose(ta.rear_force_g[c], tb.front_force_g[c], rtol=1e-9, atol=1e-6)
+    assert_allclose(ta.reserve_g[c], tb.reserve_g[c], rtol=1e-9, atol=1e-6)
     fa, fb = engine.analyse(fwd).overdrive, engine.analyse(back).overdrive
     # percent difference is symmetric; the underdrive's "percent of the front" is −(k − 1)
     assert fb.pct_difference == pytest.approx(fa.pct_difference, rel=1e-9)
