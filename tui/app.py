@@ -518,9 +518,20 @@ class SlopeTuneApp(App[int]):
 
     def action_plan(self) -> None:
         """Let the planner suggest a setup; apply it if accepted."""
+        before = self.setup
+
         def apply(setup: Optional[Setup]) -> None:
-            if setup is not None:
-                self._replace_setup(setup, "Planned setup applied (not saved yet)")
+            if setup is None:
+                return
+            note = "Planned setup applied (not saved yet)"
+            if self.baseline is None:
+                # the setup before the plan becomes the baseline: the chart overlays it and the
+                # status says how each named angle moved
+                self.baseline = Baseline(before, "before plan")
+                self._recompute(baseline_too=True)
+                self._show_title()
+                note += "; the setup before it is the baseline (x clears it)"
+            self._replace_setup(setup, note)
 
         self._push("tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
 
