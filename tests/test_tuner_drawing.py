@@ -42,7 +42,7 @@ def _cells(line: Text) -> list[tuple[str, Style]]:
 def _plotext_lines(data, width, height, ascii_only) -> list[Text]:
     """The chart as plotext draws it, slope line and all (the reference)."""
     text = Text.from_ansi(lc.plot_text(data, width, height, ascii_only), no_wrap=True, end="")
-    return list(lc._restyle(text, STYLES).split("\n", allow_blank=True))
+    return list(lc.restyle(text, STYLES).split("\n", allow_blank=True))
 
 
 @pytest.mark.parametrize("ascii_only", [False, True])

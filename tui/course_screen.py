@@ -30,7 +30,7 @@ from textual.widgets import Static
 from engine import Setup, SetupError
 from engine.course_walk import CourseWalk, state_words, walk_course
 
-from .widgets.load_chart import ASCII_FOLD, nice_step
+from .widgets.load_chart import ASCII_FOLD, nice_step, restyle
 
 STEP_MM = 5.0
 FAR_STEPS = 10
@@ -255,7 +255,7 @@ class CourseChart(Widget):
         if key != self._key:
             self.builds += 1
             body = load_plot(self.walk, self.index, width, height - 1, self.ascii_only)
-            chart = _restyle(Text.from_ansi(body, no_wrap=True, end=""), styles)
+            chart = restyle(Text.from_ansi(body, no_wrap=True, end=""), styles, _TAG_OF_NUMBER)
             chart.append("\n")
             chart.append(("*" if self.ascii_only else "\u2022") + " F front  ", styles["front"])
             chart.append("x R rear  ", styles["rear"])
@@ -294,18 +294,6 @@ def load_plot(walk: CourseWalk, index: int, width: int, height: int, ascii_only:
     text = plt.build().rstrip("\n")
     if ascii_only:
         text = text.translate(ASCII_FOLD).encode("latin-1", "replace").decode("latin-1")
-    return text
-
-
-def _restyle(text: Text, styles: dict[str, Style]) -> Text:
-    """Swap plotext's tag colours for the theme's styles; everything else in the axes style."""
-    spans = []
-    for span in text.spans:
-        style = span.style if isinstance(span.style, Style) else Style.parse(str(span.style))
-        number = style.color.number if style.color is not None else None
-        spans.append(Span(span.start, span.end, styles[_TAG_OF_NUMBER.get(number, "axes")]))
-    text.spans = spans
-    text.style = styles["axes"]
     return text
 
 

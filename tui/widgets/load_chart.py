@@ -306,7 +306,7 @@ def build_layer(data: ChartData, width: int, height: int, ascii_only: bool, styl
     (an x axis without them would come out otherwise); else the marker is drawn by plotext too."""
     on_curves = bool(data.current.slope_deg)
     body = _plotext(data, width, height, ascii_only, slope_line=not on_curves)
-    lines = _restyle(Text.from_ansi(body, no_wrap=True, end=""), styles).split("\n", allow_blank=True)
+    lines = restyle(Text.from_ansi(body, no_wrap=True, end=""), styles).split("\n", allow_blank=True)
     frame = find_frame([line.plain for line in lines]) if on_curves else None
     if ascii_only:
         for line in lines:
@@ -341,14 +341,14 @@ def slope_overlay(layer: Layer, data: ChartData, ascii_only: bool, style: Style)
     return out
 
 
-def _restyle(text: Text, styles: dict[str, Style]) -> Text:
-    """Swap plotext's tag colours for the theme's styles; leave the axes in the axes style."""
+def restyle(text: Text, styles: dict[str, Style], name_of_number=None) -> Text:
+    """Swap plotext's tag colours (by colour number) for the theme's styles; the rest in "axes"."""
+    names = _STYLE_OF_NUMBER if name_of_number is None else name_of_number
     spans = []
     for span in text.spans:
         style = span.style if isinstance(span.style, Style) else Style.parse(str(span.style))
         number = style.color.number if style.color is not None else None
-        name = _STYLE_OF_NUMBER.get(number, "axes")
-        spans.append(Span(span.start, span.end, styles[name]))
+        spans.append(Span(span.start, span.end, styles[names.get(number, "axes")]))
     text.spans = spans
     text.style = styles["axes"]
     return text
