@@ -37,19 +37,12 @@ def handover_deg(analysis: Analysis) -> Optional[float]:
     return analysis.angles_deg.get(key)
 
 
-def state_at(analysis: Analysis, slope_deg: float) -> str:
-    import numpy as np
-
-    from engine import STATES
-
-    return STATES[int(analysis.at(np.array([slope_deg])).traction.state[0])]
-
-
-def _lifted_axle(analysis: Analysis, slope_deg: float) -> str:
+def here_at(analysis: Analysis, slope_deg: float) -> tuple[str, Optional[str]]:
+    """(slip state, lifted axle or None) at one slope, from one evaluation."""
     import numpy as np
 
     sweep = analysis.at(np.array([slope_deg]))
-    return "front" if sweep.front_normal_g[0] <= 0 else "rear"
+    return sweep.slipping[0], sweep.lifted[0]
 
 
 def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optional[float]:
@@ -70,12 +63,12 @@ def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optio
     return float(hits[np.argmin(np.abs(hits - slope_deg))])
 
 
-def flag_line(analysis: Analysis, slope_deg: float, units: Units) -> tuple[str, str]:
-    """(level, words) of the flag at `slope_deg`."""
-    here = state_at(analysis, slope_deg)
+def flag_line(analysis: Analysis, slope_deg: float, units: Units,
+              here: Optional[tuple[str, Optional[str]]] = None) -> tuple[str, str]:
+    """(level, words) of the flag at `slope_deg` (`here`: `here_at` of it, when already known)."""
+    here, axle = here or here_at(analysis, slope_deg)
     at = units.slope(slope_deg)
     if here == "lifted":
-        axle = _lifted_axle(analysis, slope_deg)
         tips = "flips backwards" if axle == "front" else "tips forwards"
         return "danger", f"STOP: {axle} axle lifts at {at}; the rig {tips}"
     if here == "both":
@@ -102,8 +95,8 @@ def _overdrive_line(analysis: Analysis, units: Units) -> str:
             f" (gears {od.gear_pct:+.1f}%, {tyres})")
 
 
-def _here_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
-    here = state_at(analysis, slope_deg)
+def _here_line(analysis: Analysis, slope_deg: float, units: Units, here: tuple[str, Optional[str]]) -> str:
+    here, axle = here
     how = "climbing" if analysis.load == "climb" else "no load"
     head = f"At {units.slope(slope_deg)} {how}: "
     if here in ("front", "rear"):
@@ -112,7 +105,7 @@ def _here_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
         return head + "both axles grip"
     if here == "both":
         return head + "both axles slip"
-    return head + f"{_lifted_axle(analysis, slope_deg)} axle off the ground"
+    return head + f"{axle} axle off the ground"
 
 
 def _away(angle: float, slope_deg: float, units: Units, above: str, below: str) -> str:
@@ -175,10 +168,11 @@ def compare_line(analysis: Analysis, baseline: Analysis, units: Units) -> str:
 def status_view(analysis: Analysis, units: Units, baseline: Optional[Analysis] = None) -> StatusView:
     """Everything the status pane shows for `analysis` at the setup's slope."""
     slope = float(analysis.setup.terrain.slope_deg)
-    level, flag = flag_line(analysis, slope, units)
+    here = here_at(analysis, slope)
+    level, flag = flag_line(analysis, slope, units, here)
     lines = (
         _overdrive_line(analysis, units),
-        _here_line(analysis, slope, units),
+        _here_line(analysis, slope, units, here),
         _handover_line(analysis, slope, units),
         _max_grade_line(analysis, slope, units),
         _lift_line(analysis, slope, units),

@@ -71,13 +71,14 @@ def report_dict(a) -> dict:
     r, od, s = a.rig, a.overdrive, a.sweep
     t = s.traction
     rows = []
+    lifted, slipping = s.lifted, s.slipping  # built once: each is a list over the sweep
     for i, slope in enumerate(s.slope_deg):
         rows.append({
             "slope_deg": _num(slope), "front_normal_g": _num(s.front_normal_g[i], 3),
-            "rear_normal_g": _num(s.rear_normal_g[i], 3), "lifted": s.lifted[i],
+            "rear_normal_g": _num(s.rear_normal_g[i], 3), "lifted": lifted[i],
             "required_g": _num(s.required_g[i], 3), "front_force_g": _num(t.front_force_g[i], 3),
             "rear_force_g": _num(t.rear_force_g[i], 3), "windup_g": _num(t.windup_g[i], 3),
-            "reserve_g": _num(t.reserve_g[i], 3), "slipping": s.slipping[i],
+            "reserve_g": _num(t.reserve_g[i], 3), "slipping": slipping[i],
         })
     return {
         "schema": 1,
@@ -138,10 +139,11 @@ def report_text(a) -> str:
     out.append(f"{'slope':>6} {'N front':>8} {'N rear':>8} {'needed':>8} {'F front':>8} {'F rear':>8}"
                f" {'wind-up':>8} {'reserve':>8}  state")
     s, t = a.sweep, a.sweep.traction
+    slipping = s.slipping
     for i, slope in enumerate(s.slope_deg):
         out.append(f"{slope:>6.1f} {table_cell(s.front_normal_g[i])} {table_cell(s.rear_normal_g[i])} {table_cell(s.required_g[i])}"
                    f" {table_cell(t.front_force_g[i])} {table_cell(t.rear_force_g[i])} {table_cell(t.windup_g[i])}"
-                   f" {table_cell(t.reserve_g[i])}  {s.slipping[i]}")
+                   f" {table_cell(t.reserve_g[i])}  {slipping[i]}")
     out.append("")
     out.append("Static model: driveline wind-up loads gears, shafts and motors. Check on the bench, hands clear.")
     return "\n".join(out)
