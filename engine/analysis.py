@@ -251,7 +251,7 @@ def analyse(setup: Setup, slopes_deg=None, *, accel_g: Optional[float] = None, l
 
     sweep = model.sweep(slopes)
 
-    climb = _Model(rig, setup, od.overdriven_axle, "climb", model.accel)
+    climb = model if model.climb else _Model(rig, setup, od.overdriven_axle, "climb", 0.0)
     max_grade, limit = _max_grade(model)
     a = model.accel
     b, h, L = rig.cg_from_rear_mm, rig.cg_height_mm, rig.wheelbase_mm
