@@ -16,8 +16,8 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from engine import load_setup  # noqa: E402
-from engine.course_walk import course_positions, walk_course  # noqa: E402
+from slopetune.engine import load_setup  # noqa: E402
+from slopetune.engine.course_walk import course_positions, walk_course  # noqa: E402
 
 POSITIONS = 2000
 REPEATS = 30

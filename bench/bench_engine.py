@@ -17,8 +17,8 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from engine import analyse, load_setup  # noqa: E402
-from engine.analysis import effective_rig, setup_overdrive  # noqa: E402
+from slopetune.engine import analyse, load_setup  # noqa: E402
+from slopetune.engine.analysis import effective_rig, setup_overdrive  # noqa: E402
 
 SETUP = Path(__file__).resolve().parents[1] / "setups" / "marmot-overdrive.toml"
 SLOPES = np.arange(-90.0, 90.0 + 1e-9, 0.5)

@@ -11,7 +11,7 @@ Measured for both apps, each in its own pseudo-terminal (`pty.fork`), TERM=xterm
     is settled (everything read, then 60 ms of silence);
 (e) peak RSS of each child (`os.wait4` rusage).
 
-The tuner starts as `python -m tui.cli setups/marmot-overdrive.toml` in the project folder; its form
+The tuner starts as `python -m slopetune.tui.cli setups/marmot-overdrive.toml` in the project folder; its form
 focuses the slope on start, Right/Left step it. Its file is checked unchanged at the end (the
 benchmark never saves; it quits with Ctrl+Q and, if the tuner asks about unsaved changes, ends it
 with SIGTERM rather than answer).
@@ -347,7 +347,7 @@ def main(argv=None) -> int:
     python = sys.executable
     bare_t = Target("bare", [python, str(ROOT / "bench" / "bare_app.py")], ROOT, b"bare value 0")
     # "slope": the form's first field (and the title's first word), in the tuner's first frame.
-    tuner_t = Target("tuner", [python, "-m", "tui.cli", args.setup], ROOT, b"slope")
+    tuner_t = Target("tuner", [python, "-m", "slopetune.tui.cli", args.setup], ROOT, b"slope")
     setup_path = ROOT / args.setup
     before = hashlib.sha256(setup_path.read_bytes()).hexdigest()
     env = child_env(args.fps)

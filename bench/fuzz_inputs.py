@@ -37,9 +37,9 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from engine import STATES, SetupError, analyse, check_value, load_setup, parse_setup  # noqa: E402
-from engine.setup_file import one_line  # noqa: E402
-from engine.setup_model import FIELDS, rule_for  # noqa: E402
+from slopetune.engine import STATES, SetupError, analyse, check_value, load_setup, parse_setup  # noqa: E402
+from slopetune.engine.setup_file import one_line  # noqa: E402
+from slopetune.engine.setup_model import FIELDS, rule_for  # noqa: E402
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -428,7 +428,7 @@ def check_bytes(data: bytes, folder: Path) -> None:
 
 def check_cli_report(text: str, folder: Path) -> None:
     """`slopetune report FILE`: exit 0, 1 or 2; on 2 one line on stderr and no traceback."""
-    from tui.cli import main
+    from slopetune.tui.cli import main
 
     path = folder / "report.toml"
     path.write_text(text, encoding="utf-8")

@@ -29,8 +29,8 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from engine import SetupError, load_setup  # noqa: E402
-from tui.setup_writer import TMP_SUFFIX, FileChangedOnDisk, SaveError, save_setup, write_atomic  # noqa: E402
+from slopetune.engine import SetupError, load_setup  # noqa: E402
+from slopetune.tui.setup_writer import TMP_SUFFIX, FileChangedOnDisk, SaveError, save_setup, write_atomic  # noqa: E402
 
 SOURCE = ROOT / "setups" / "marmot-overdrive.toml"
 PYTHON = sys.executable
@@ -199,7 +199,7 @@ def library_load(place: str, path: Path) -> Result:
 def cli(place: str, argv: list[str], path: Path, expect_code: int = 2, user: str | None = None) -> Result:
     """One `slopetune` command in a subprocess: exit code and one line on stderr naming the file."""
     before = path.read_bytes() if path.is_file() else None
-    cmd = [PYTHON, "-m", "tui.cli", *argv]
+    cmd = [PYTHON, "-m", "slopetune.tui.cli", *argv]
     if user:
         if shutil.which("setpriv") is None:
             raise Unavailable("no setpriv to run as an unprivileged user")
@@ -224,7 +224,7 @@ async def _tuner_save(path: Path, *, change_on_disk=None, save_as: Path | None =
     Returns (outcome, message, why-not-ok)."""
     from textual.widgets import Input
 
-    from tui.app import SlopeTuneApp
+    from slopetune.tui.app import SlopeTuneApp
 
     loaded = load_setup(path)
     before = path.read_bytes()

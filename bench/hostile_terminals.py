@@ -1,7 +1,7 @@
 """Start the tuner on awkward terminals under a real pty: it paints, stays usable, exits cleanly.
 
 Run: python bench/hostile_terminals.py
-Goal: every row OK. For each terminal the tuner is started with `python -m tui.cli FILE` on a
+Goal: every row OK. For each terminal the tuner is started with `python -m slopetune.tui.cli FILE` on a
 pseudo-terminal of the given size; the check waits for the setup's name (or, in a window below
 the tuner's minimum, the plain "too small" notice), steps the slope with the Right arrow and waits
 for 31.0 to appear, presses q and answers y to "quit without saving?", and then wants exit code 0,
@@ -103,7 +103,7 @@ class Pty:
             fcntl.ioctl(0, termios.TIOCSWINSZ, struct.pack("HHHH", rows, cols, 0, 0))
             os.chdir(ROOT)
             try:
-                os.execve(sys.executable, [sys.executable, "-m", "tui.cli", *argv], env)
+                os.execve(sys.executable, [sys.executable, "-m", "slopetune.tui.cli", *argv], env)
             finally:
                 os._exit(127)
         self.pid, self.fd, self.out = pid, fd, b""

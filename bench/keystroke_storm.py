@@ -33,12 +33,12 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from engine import load_setup  # noqa: E402
-from tui.app import SlopeTuneApp  # noqa: E402
-from tui.widgets import form_fields as ff  # noqa: E402
-from tui.widgets.load_chart import chart_data  # noqa: E402
-from tui.widgets.setup_form import SetupForm  # noqa: E402
-from tui.status_words import status_view  # noqa: E402
+from slopetune.engine import load_setup  # noqa: E402
+from slopetune.tui.app import SlopeTuneApp  # noqa: E402
+from slopetune.tui.widgets import form_fields as ff  # noqa: E402
+from slopetune.tui.widgets.load_chart import chart_data  # noqa: E402
+from slopetune.tui.widgets.setup_form import SetupForm  # noqa: E402
+from slopetune.tui.status_words import status_view  # noqa: E402
 
 SOURCE = ROOT / "setups" / "marmot-overdrive.toml"
 LEFT_OUT = {"quit", "save_as", "open", "open_baseline"}  # quit, or a dialog that writes or opens files

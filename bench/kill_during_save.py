@@ -30,8 +30,8 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from engine import LoadedSetup, SetupError, load_setup  # noqa: E402
-from tui.setup_writer import TMP_SUFFIX, render_setup, save_setup  # noqa: E402
+from slopetune.engine import LoadedSetup, SetupError, load_setup  # noqa: E402
+from slopetune.tui.setup_writer import TMP_SUFFIX, render_setup, save_setup  # noqa: E402
 
 SOURCE = ROOT / "setups" / "marmot-overdrive.toml"
 

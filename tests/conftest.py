@@ -17,8 +17,8 @@ ROOT = Path(__file__).resolve().parent.parent
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from engine import BallastItem, Driveline, Grip, Rig, Setup, Terrain  # noqa: E402
-from engine.setup_model import cross_field_problems  # noqa: E402
+from slopetune.engine import BallastItem, Driveline, Grip, Rig, Setup, Terrain  # noqa: E402
+from slopetune.engine.setup_model import cross_field_problems  # noqa: E402
 
 settings.register_profile(
     "slopetune", max_examples=100, deadline=None, suppress_health_check=[HealthCheck.too_slow]

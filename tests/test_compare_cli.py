@@ -12,7 +12,7 @@ from pathlib import Path
 
 import pytest
 
-from tui.cli import main
+from slopetune.tui.cli import main
 
 ROOT = Path(__file__).resolve().parent.parent
 STOCK = str(ROOT / "setups" / "marmot-stock.toml")
@@ -104,7 +104,7 @@ def test_bad_file_is_one_line_exit_2(tmp_path, capsys):
 
 
 def test_long_differences_drop_decimals_rather_than_get_cut():
-    from tui.commands.compare import _cell
+    from slopetune.tui.commands.compare import _cell
 
     assert _cell(-56.51, ".2f", 10.0, show_diff=True, width=14) == "-56.51 (-66.5)"
     assert _cell(-56.51, ".2f", 10.0, show_diff=True, width=20) == "-56.51 (-66.51)"

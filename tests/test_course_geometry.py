@@ -21,7 +21,7 @@ from hypothesis import assume, given
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from engine.course_geometry import centre_height, place_rig, wheel_path
+from slopetune.engine.course_geometry import centre_height, place_rig, wheel_path
 
 
 def _distance_to_polyline(pts, q):

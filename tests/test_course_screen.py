@@ -11,8 +11,8 @@ from pathlib import Path
 
 from textual.app import App
 
-from engine import load_setup
-from tui.course_screen import CourseChart, CourseScreen, CourseStatus, SideView, draw_side_view
+from slopetune.engine import load_setup
+from slopetune.tui.course_screen import CourseChart, CourseScreen, CourseStatus, SideView, draw_side_view
 
 ROOT = Path(__file__).resolve().parent.parent
 KESTREL = ROOT / "setups" / "course-kestrel-knuckle.toml"
@@ -93,7 +93,7 @@ async def _ascii_view_and_chart():
 def test_side_view_puts_the_wheels_on_the_ground():
     """On level ground the wheel outlines' lowest cells sit right above the surface row."""
     walk_setup = load_setup(KESTREL).setup
-    from engine.course_walk import walk_course
+    from slopetune.engine.course_walk import walk_course
 
     walk = walk_course(walk_setup, 5.0)
     grid, tags = draw_side_view(walk, 0, 80, 12)

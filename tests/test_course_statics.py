@@ -22,9 +22,9 @@ from hypothesis import assume, given
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from engine import analyse
-from engine.contact_statics import solve_contacts
-from engine.traction import BOTH, FRONT, LIFTED, NONE, REAR
+from slopetune.engine import analyse
+from slopetune.engine.contact_statics import solve_contacts
+from slopetune.engine.traction import BOTH, FRONT, LIFTED, NONE, REAR
 
 from conftest import rig_setups
 

@@ -22,10 +22,10 @@ from hypothesis import assume, given
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from engine import Course, analyse, load_setup
-from engine.course_walk import walk_course
-from engine.traction import BOTH, FRONT, LIFTED, REAR
-from tui.cli import main
+from slopetune.engine import Course, analyse, load_setup
+from slopetune.engine.course_walk import walk_course
+from slopetune.engine.traction import BOTH, FRONT, LIFTED, REAR
+from slopetune.tui.cli import main
 
 from conftest import rig_setups
 

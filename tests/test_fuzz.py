@@ -21,7 +21,7 @@ if str(ROOT) not in sys.path:  # bench/ is not installed: import it from the che
     sys.path.insert(0, str(ROOT))
 
 from bench import fuzz_inputs as fz  # noqa: E402
-from engine import SetupError, check_value, parse_setup  # noqa: E402
+from slopetune.engine import SetupError, check_value, parse_setup  # noqa: E402
 
 CI = settings(max_examples=80, deadline=None, database=None, derandomize=True,
               suppress_health_check=list(HealthCheck))

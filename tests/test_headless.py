@@ -15,7 +15,7 @@ import pytest
 
 ROOT = Path(__file__).resolve().parent.parent
 FORBIDDEN = ("textual", "plotext", "tomlkit", "rich")
-MODULES = ["engine"] + sorted(f"engine.{p.stem}" for p in (ROOT / "engine").glob("*.py") if p.stem != "__init__")
+MODULES = ["slopetune.engine"] + sorted(f"slopetune.engine.{p.stem}" for p in (ROOT / "engine").glob("*.py") if p.stem != "__init__")
 
 PROBE = """
 import importlib, sys
@@ -38,7 +38,7 @@ def imported():
 
 
 def test_every_engine_module_is_probed():
-    assert "engine.analysis" in MODULES and "engine.traction" in MODULES and len(MODULES) >= 9
+    assert "slopetune.engine.analysis" in MODULES and "slopetune.engine.traction" in MODULES and len(MODULES) >= 9
 
 
 @pytest.mark.parametrize("module", MODULES)

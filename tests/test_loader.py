@@ -18,8 +18,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import engine
-from engine import SetupError, load_setup, parse_setup
+from slopetune import engine
+from slopetune.engine import SetupError, load_setup, parse_setup
 
 ROOT = Path(__file__).resolve().parent.parent
 BAD = Path(__file__).resolve().parent / "fixtures" / "bad"
@@ -187,7 +187,7 @@ def test_arbitrary_bytes_raise_only_setup_error(junk, at):
 
 def _run_reports(paths):
     env = dict(os.environ, PYTHONPATH=str(ROOT))
-    procs = [subprocess.Popen([sys.executable, "-m", "tui.cli", "report", str(p)], cwd=ROOT, env=env,
+    procs = [subprocess.Popen([sys.executable, "-m", "slopetune.tui.cli", "report", str(p)], cwd=ROOT, env=env,
                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True) for p in paths]
     return [(p.wait(timeout=120), p.stdout.read(), p.stderr.read()) for p in procs]
 

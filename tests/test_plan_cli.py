@@ -14,9 +14,9 @@ from pathlib import Path
 
 import pytest
 
-from engine import load_setup
-from tui.cli import main
-from tui.commands.plan import PlanSyntaxError, parse_lever, parse_target
+from slopetune.engine import load_setup
+from slopetune.tui.cli import main
+from slopetune.tui.commands.plan import PlanSyntaxError, parse_lever, parse_target
 
 ROOT = Path(__file__).resolve().parent.parent
 STOCK = ROOT / "setups" / "marmot-stock.toml"

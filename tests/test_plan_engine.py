@@ -18,8 +18,8 @@ from hypothesis import strategies as st
 from scipy.optimize import brentq
 
 from conftest import rig_setups
-from engine import BallastItem, Driveline, Grip, Rig, Setup, Terrain, load_setup
-from engine.goal_seek import (
+from slopetune.engine import BallastItem, Driveline, Grip, Rig, Setup, Terrain, load_setup
+from slopetune.engine.goal_seek import (
     AddBallast, CgHeight, Compound, LeverError, MoveBallast, Overdrive, Target, brent_root, plan,
 )
 
@@ -335,8 +335,8 @@ def test_any_rig_any_lever_answer_meets_target_or_says_why(setup, angle, delta, 
     # Whatever the rig: a reached answer meets the target in an independent re-analysis of the
     # returned setup (the setup, not the planner's cache), stays within the lever's limits, and
     # an unreached one never meets it at the value it reports.
-    from engine import analyse
-    from engine.goal_seek import angle_value_deg
+    from slopetune.engine import analyse
+    from slopetune.engine.goal_seek import angle_value_deg
 
     levers = [AddBallast(setup.rig.wheelbase_mm * 0.9, 40.0), CgHeight(), Overdrive(), Compound(),
               MoveBallast(0) if setup.rig.ballast else AddBallast(10.0, 30.0, -100.0, 0.0)]

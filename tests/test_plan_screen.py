@@ -14,8 +14,8 @@ from rich.console import Console
 from textual.app import App, ComposeResult
 from textual.widgets import Label
 
-from engine import load_setup
-from tui.screens.plan import Choice, PlanScreen
+from slopetune.engine import load_setup
+from slopetune.tui.screens.plan import Choice, PlanScreen
 
 ROOT = Path(__file__).resolve().parent.parent
 STOCK = load_setup(ROOT / "setups" / "marmot-stock.toml").setup

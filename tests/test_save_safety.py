@@ -21,7 +21,7 @@ if str(ROOT) not in sys.path:  # bench/ is not installed: import it from the che
     sys.path.insert(0, str(ROOT))
 
 from bench import kill_during_save as kd  # noqa: E402
-from tui import setup_writer  # noqa: E402
+from slopetune.tui import setup_writer  # noqa: E402
 
 pytestmark = pytest.mark.skipif(not hasattr(os, "fork"), reason="needs os.fork (POSIX)")
 

@@ -15,12 +15,12 @@ from textual.app import App, ComposeResult
 from textual.binding import Binding
 from textual.widgets import Button, Input, Label, OptionList, Static
 
-from engine import load_setup
-from tui.screens.confirm import ConfirmScreen
-from tui.screens.help import HelpScreen, ascii_fold, key_label
-from tui.screens.measure import MeasureScreen, parse_lift_pairs
-from tui.screens.open_file import OpenFileScreen, scan_setup_files
-from tui.screens.path_prompt import PathPromptScreen
+from slopetune.engine import load_setup
+from slopetune.tui.screens.confirm import ConfirmScreen
+from slopetune.tui.screens.help import HelpScreen, ascii_fold, key_label
+from slopetune.tui.screens.measure import MeasureScreen, parse_lift_pairs
+from slopetune.tui.screens.open_file import OpenFileScreen, scan_setup_files
+from slopetune.tui.screens.path_prompt import PathPromptScreen
 
 ROOT = Path(__file__).resolve().parent.parent
 STOCK = ROOT / "setups" / "marmot-stock.toml"

@@ -10,9 +10,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-import engine
-from engine import slope_statics as ss
-from engine import Driveline, Grip, Rig, Setup, Terrain
+from slopetune import engine
+from slopetune.engine import slope_statics as ss
+from slopetune.engine import Driveline, Grip, Rig, Setup, Terrain
 
 import reference_model as ref
 from conftest import examples, rig_setups
@@ -222,7 +222,7 @@ def test_ballast_combination_by_hand():
     # Jazar ch. 2: the mass centre is the mass-weighted mean position. 2000 g at (180, 75) plus
     # 200 g at (300, 40) minus 100 g at (100, 60): total 2100 g, x = (360000 + 60000 − 10000)/2100,
     # z = (150000 + 8000 − 6000)/2100.
-    from engine import BallastItem
+    from slopetune.engine import BallastItem
     setup = plain_setup(ballast=(BallastItem("weights", 200.0, 300.0, 40.0), BallastItem("links", -100.0, 100.0, 60.0)))
     rig = engine.analyse(setup).rig
     assert rig.mass_g == pytest.approx(2100.0)

@@ -15,8 +15,8 @@ if str(ROOT) not in sys.path:  # bench/ is not installed: import it from the che
     sys.path.insert(0, str(ROOT))
 
 from bench import keystroke_storm as ks  # noqa: E402
-from engine import analyse, load_setup  # noqa: E402
-from tui.app import SlopeTuneApp  # noqa: E402
+from slopetune.engine import analyse, load_setup  # noqa: E402
+from slopetune.tui.app import SlopeTuneApp  # noqa: E402
 
 SEED = 313
 

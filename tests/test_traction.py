@@ -15,10 +15,10 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-import engine
-from engine import Driveline, Grip, Rig, Setup, Terrain
-from engine import traction as tr
-from engine.overdrive import gear_overdrive_pct, overdrive_figures, stage_reduction
+from slopetune import engine
+from slopetune.engine import Driveline, Grip, Rig, Setup, Terrain
+from slopetune.engine import traction as tr
+from slopetune.engine.overdrive import gear_overdrive_pct, overdrive_figures, stage_reduction
 
 import reference_model as ref
 from conftest import examples, rig_setups
@@ -464,7 +464,7 @@ def _json_report(text, folder, name):
     root = Path(__file__).resolve().parent.parent
     path = folder / f"{name}.toml"
     path.write_text(text, encoding="utf-8")
-    out = subprocess.run([sys.executable, "-m", "tui.cli", "report", str(path), "--json", "--from", "-89",
+    out = subprocess.run([sys.executable, "-m", "slopetune.tui.cli", "report", str(path), "--json", "--from", "-89",
                           "--to", "89", "--step", "0.5"], cwd=root, capture_output=True, text=True, timeout=120,
                          env=dict(os.environ, PYTHONPATH=str(root)))
     assert out.returncode == 0, out.stderr

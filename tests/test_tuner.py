@@ -17,9 +17,9 @@ from pathlib import Path
 import pytest
 from scipy.optimize import brentq
 
-from engine import load_setup
-from tui.app import SlopeTuneApp
-from tui.widgets.setup_form import SetupForm
+from slopetune.engine import load_setup
+from slopetune.tui.app import SlopeTuneApp
+from slopetune.tui.widgets.setup_form import SetupForm
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
@@ -400,7 +400,7 @@ def test_bundled_demo_is_the_shipped_setup():
 def test_demo_copy_saves_through_save_as_with_its_comments(tmp_path):
     from textual.widgets import Input
 
-    from tui.app_main import demo_setup
+    from slopetune.tui.app_main import demo_setup
 
     target = tmp_path / "mine"
 

@@ -18,11 +18,11 @@ from rich.console import Console
 from rich.style import Style
 from rich.text import Text
 
-from engine import load_setup
-from tui.app import SlopeTuneApp
-from tui.units import Units
-from tui.widgets import load_chart as lc
-from tui.widgets.line_strips import changed_cells, text_strip
+from slopetune.engine import load_setup
+from slopetune.tui.app import SlopeTuneApp
+from slopetune.tui.units import Units
+from slopetune.tui.widgets import load_chart as lc
+from slopetune.tui.widgets.line_strips import changed_cells, text_strip
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
@@ -50,7 +50,7 @@ def _plotext_lines(data, width, height, ascii_only) -> list[Text]:
 def test_slope_marker_over_the_cached_drawing_is_what_plotext_draws(ascii_only, full_range):
     import numpy as np
 
-    from engine import analyse
+    from slopetune.engine import analyse
 
     grid = np.arange(-90.0, 91.0, 1.0) if full_range else np.arange(0.0, 91.0, 1.0)
     analysis = analyse(load_setup(DEMO).setup, grid)
@@ -116,8 +116,8 @@ def test_changed_cells_compares_columns_not_words():
 
 
 def test_importing_the_tuner_leaves_numpy_and_plotext_for_after_the_first_frame():
-    code = ("import sys, tui.app, tui.app_main;"
-            "print(sorted(m for m in ('numpy', 'plotext', 'engine.analysis', 'engine.traction') if m in sys.modules))")
+    code = ("import sys, slopetune.tui.app, slopetune.tui.app_main;"
+            "print(sorted(m for m in ('numpy', 'plotext', 'slopetune.engine.analysis', 'slopetune.engine.traction') if m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True, timeout=60)
     assert out.returncode == 0, out.stderr
     assert out.stdout.strip() == "[]"

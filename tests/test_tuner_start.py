@@ -7,10 +7,10 @@ import sys
 from pathlib import Path
 from types import SimpleNamespace
 
-from tui.app_main import demo_setup, display_charset
-from tui.widgets import form_fields as ff
-from tui.widgets.load_chart import ASCII_FOLD, chart_data, plot_text
-from tui.units import Units
+from slopetune.tui.app_main import demo_setup, display_charset
+from slopetune.tui.widgets import form_fields as ff
+from slopetune.tui.widgets.load_chart import ASCII_FOLD, chart_data, plot_text
+from slopetune.tui.units import Units
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -31,7 +31,7 @@ def test_bad_file_is_one_line_and_exit_2_before_textual(tmp_path):
 
 
 def test_missing_baseline_file_also_stops_early(tmp_path):
-    from tui.app_main import run_tuner
+    from slopetune.tui.app_main import run_tuner
 
     rc = run_tuner(SimpleNamespace(file=None, ascii=False, baseline=str(tmp_path / "none.toml")))
     assert rc == 2
@@ -94,7 +94,7 @@ def test_steps_per_field_and_coarse_step():
 
 
 def test_ascii_chart_text_is_latin1_at_many_sizes():
-    import engine
+    from slopetune import engine
     import numpy as np
 
     setup = demo_setup().setup
@@ -132,9 +132,9 @@ def _reference_state(setup, slope_deg):
 
 
 def test_flag_words_match_the_reference_states_on_the_steep_side():
-    import engine
+    from slopetune import engine
 
-    from tui.status_words import status_view
+    from slopetune.tui.status_words import status_view
 
     base = demo_setup().setup
     for slope in (10.0, 40.0, 45.0, 60.0, 70.0):
@@ -151,7 +151,7 @@ def test_flag_words_match_the_reference_states_on_the_steep_side():
 
 
 def test_chart_text_does_not_depend_on_the_chart_drawn_before():
-    import engine
+    from slopetune import engine
     import numpy as np
 
     setup = demo_setup().setup

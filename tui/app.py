@@ -30,7 +30,7 @@ from textual.message import Message
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
-from engine import LoadedSetup, Setup, SetupError, load_setup  # numpy-free: engine loads names lazily
+from slopetune.engine import LoadedSetup, Setup, SetupError, load_setup  # numpy-free: engine loads names lazily
 
 from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
@@ -41,7 +41,7 @@ from .units import Units
 if TYPE_CHECKING:
     import numpy as np
 
-    from engine import Analysis
+    from slopetune.engine import Analysis
 
 MIN_COLUMNS, MIN_ROWS = 60, 20
 HELD_KEY_GAP_S = 0.06  # edits closer than this come from a held key (auto-repeat is 25-33 Hz)
@@ -247,7 +247,7 @@ class SlopeTuneApp(App[int]):
     def _recompute(self, baseline_too: bool = False, chart_now: bool = True) -> None:
         """Analyse the setup and show it now (a deliberate action, not a held key)."""
         if baseline_too:
-            from engine import analyse
+            from slopetune.engine import analyse
 
             self._baseline_analysis = (analyse(self.baseline.setup, self._slopes())
                                        if self.baseline is not None else None)
@@ -259,7 +259,7 @@ class SlopeTuneApp(App[int]):
 
     def _update(self, chart_now: bool) -> None:
         """Analyse the latest setup; show the flag and the words, and the chart now or a frame later."""
-        from engine import analyse  # after the first frame: numpy and the engine's sums load here
+        from slopetune.engine import analyse  # after the first frame: numpy and the engine's sums load here
 
         from .status_words import status_view
 
@@ -343,7 +343,7 @@ class SlopeTuneApp(App[int]):
 
     def _ask(self, question: str, yes: str, no: str, then: Callable[[], None]) -> None:
         """Ask a yes/no question; run `then` only on yes."""
-        confirm = self._screen_class("tui.screens.confirm", "ConfirmScreen")
+        confirm = self._screen_class("slopetune.tui.screens.confirm", "ConfirmScreen")
         if confirm is None:
             self._note(f"{question} (no confirm screen in this build: not done)", "error")
             return
@@ -383,7 +383,7 @@ class SlopeTuneApp(App[int]):
             else:
                 self._save_to(target, force=False)
 
-        self._push("tui.screens.path_prompt", "PathPromptScreen",
+        self._push("slopetune.tui.screens.path_prompt", "PathPromptScreen",
                    lambda cls: cls("Save setup as", initial=initial), chosen, "save-as")
 
     def _save_to(self, target: Path, force: bool) -> None:
@@ -417,7 +417,7 @@ class SlopeTuneApp(App[int]):
             else:
                 self._open(path)
 
-        self._push("tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen, "open")
+        self._push("slopetune.tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen, "open")
 
     def _open(self, path: Path) -> None:
         try:
@@ -460,7 +460,7 @@ class SlopeTuneApp(App[int]):
             self._show_title()
             self._note(f"Baseline: {path}")
 
-        self._push("tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen,
+        self._push("slopetune.tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen,
                    "open-as-baseline")
 
     def action_clear_baseline(self) -> None:
@@ -491,14 +491,14 @@ class SlopeTuneApp(App[int]):
 
     def action_help(self) -> None:
         """Keys, what the chart and flags mean, and the cautions."""
-        self._push("tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only), None, "help")
+        self._push("slopetune.tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only), None, "help")
 
     def action_measure(self) -> None:
         """Turn scale readings into front bias, CG height and mu."""
         def apply(values: Optional[dict]) -> None:
             if not values:
                 return
-            from engine import check_value
+            from slopetune.engine import check_value
 
             setup, refused = self.setup, []
             for key, value in values.items():
@@ -510,11 +510,11 @@ class SlopeTuneApp(App[int]):
             self._replace_setup(setup, "; ".join(refused) if refused else
                                 "Measured: " + ", ".join(f"{k.split('.')[-1]} {v:.3g}" for k, v in values.items()))
 
-        self._push("tui.screens.measure", "MeasureScreen", lambda cls: cls(self.setup), apply, "measuring")
+        self._push("slopetune.tui.screens.measure", "MeasureScreen", lambda cls: cls(self.setup), apply, "measuring")
 
     def action_course(self) -> None:
         """Walk the rig over the setup's course (front and rear on different ground)."""
-        self._push("tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
+        self._push("slopetune.tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
 
     def action_plan(self) -> None:
         """Let the planner suggest a setup; apply it if accepted."""
@@ -533,7 +533,7 @@ class SlopeTuneApp(App[int]):
                 note += "; the setup before it is the baseline (x clears it)"
             self._replace_setup(setup, note)
 
-        self._push("tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
+        self._push("slopetune.tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
 
     def action_quit(self) -> None:
         """Quit; asks first when there are unsaved changes."""

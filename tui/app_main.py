@@ -14,7 +14,7 @@ import os
 import sys
 from typing import Optional
 
-from engine import LoadedSetup, SetupError, load_setup, parse_setup
+from slopetune.engine import LoadedSetup, SetupError, load_setup, parse_setup
 
 DEMO_FILE = "marmot-overdrive.toml"
 PLAIN_TERMS = ("linux", "dumb")
@@ -52,7 +52,7 @@ def demo_setup() -> LoadedSetup:
     """The bundled demo as an unsaved copy: its text is kept (comments survive a save-as), no path."""
     from importlib import resources
 
-    text = resources.files("tui").joinpath("demo", DEMO_FILE).read_text(encoding="utf-8")
+    text = resources.files("slopetune.tui").joinpath("demo", DEMO_FILE).read_text(encoding="utf-8")
     setup, data, warnings = parse_setup(text, f"demo/{DEMO_FILE}")
     return LoadedSetup(None, setup, text, data, None, warnings)
 

@@ -10,7 +10,7 @@ import argparse
 import importlib
 import sys
 
-from engine import SetupError
+from slopetune.engine import SetupError
 
 from .commands import COMMANDS
 
@@ -33,9 +33,9 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
         try:
-            module = importlib.import_module(f"tui.commands.{name}")
+            module = importlib.import_module(f"slopetune.tui.commands.{name}")
         except ModuleNotFoundError as exc:
-            if exc.name != f"tui.commands.{name}":
+            if exc.name != f"slopetune.tui.commands.{name}":
                 raise
             continue  # a command not built yet is simply not offered
         module.register(sub)
@@ -60,7 +60,7 @@ def main(argv=None) -> int:
         try:
             from .app_main import run_tuner
         except ModuleNotFoundError as exc:
-            if exc.name != "tui.app_main":
+            if exc.name != "slopetune.tui.app_main":
                 raise
             print("slopetune: the tuner is not built yet; try `slopetune report FILE`", file=sys.stderr)
             return 2

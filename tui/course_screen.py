@@ -27,8 +27,8 @@ from textual.screen import Screen
 from textual.widget import Widget
 from textual.widgets import Static
 
-from engine import Setup, SetupError
-from engine.course_walk import CourseWalk, state_words, walk_course
+from slopetune.engine import Setup, SetupError
+from slopetune.engine.course_walk import CourseWalk, state_words, walk_course
 
 from .widgets.load_chart import ASCII_FOLD, nice_step, restyle
 

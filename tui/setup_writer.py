@@ -17,8 +17,8 @@ from typing import Optional
 import tomlkit
 from tomlkit.items import AoT, Table
 
-from engine import LoadedSetup, Setup, SetupError, parse_setup
-from engine.setup_model import FIELDS
+from slopetune.engine import LoadedSetup, Setup, SetupError, parse_setup
+from slopetune.engine.setup_model import FIELDS
 
 TMP_SUFFIX = ".slopetune-tmp"
 
@@ -245,7 +245,7 @@ def set_keys(path, values: dict) -> LoadedSetup:
 
     Raises SetupError for a value the setup cannot take, SaveError when writing fails.
     """
-    from engine import check_value, load_setup
+    from slopetune.engine import check_value, load_setup
 
     loaded = load_setup(path)
     setup = loaded.setup

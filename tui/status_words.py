@@ -13,7 +13,7 @@ from typing import TYPE_CHECKING, NamedTuple, Optional
 from .units import Units
 
 if TYPE_CHECKING:
-    from engine import Analysis
+    from slopetune.engine import Analysis
 
 # How far up or down the slope the flag looks for the overdriven axle becoming the one that slips.
 LOOKAHEAD_DEG = 3.0
@@ -49,7 +49,7 @@ def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optio
     """The nearest slope within +-LOOKAHEAD_DEG where the overdriven axle lets go first, else None."""
     import numpy as np
 
-    from engine import STATES
+    from slopetune.engine import STATES
 
     lo, hi = max(-90.0, slope_deg - LOOKAHEAD_DEG), min(90.0, slope_deg + LOOKAHEAD_DEG)
     probe = np.linspace(lo, hi, _LOOK_SAMPLES)

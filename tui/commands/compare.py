@@ -9,7 +9,7 @@ import sys
 from pathlib import Path
 from typing import Callable, Optional
 
-from engine import analyse, load_setup
+from slopetune.engine import analyse, load_setup
 
 HELP = """\
 Several setups side by side in one table of 80 columns: the rig with its

@@ -5,8 +5,8 @@ from __future__ import annotations
 import argparse
 import math
 
-from engine import SetupError, load_setup
-from engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
+from slopetune.engine import SetupError, load_setup
+from slopetune.engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
 
 HELP = """\
 Turn bench measurements into setup values; --write FILE stores the result in a setup

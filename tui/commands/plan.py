@@ -14,8 +14,8 @@ import sys
 import textwrap
 from typing import Optional
 
-from engine import load_setup
-from engine.goal_seek import (
+from slopetune.engine import load_setup
+from slopetune.engine.goal_seek import (
     TARGET_ANGLES, AddBallast, CgHeight, Compound, LeverError, MoveBallast, Overdrive, Plan, Target,
     angle_value_deg, plan,
 )
@@ -384,7 +384,7 @@ def run(args) -> int:
                 return _fail(str(exc))
             written = str(saved.path)
             check = load_setup(saved.path)
-            from engine import analyse
+            from slopetune.engine import analyse
 
             now = analyse(check.setup)
             write_note = (f"Wrote {written}: {target.angle} is now "

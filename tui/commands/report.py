@@ -8,7 +8,7 @@ import sys
 
 import numpy as np
 
-from engine import SetupError, analyse, load_setup
+from slopetune.engine import SetupError, analyse, load_setup
 
 from ..status_words import status_view
 from ..units import Units

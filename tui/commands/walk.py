@@ -9,9 +9,9 @@ import sys
 
 import numpy as np
 
-from engine import SetupError, load_setup
-from engine.course_walk import DEFAULT_STEP_MM, CourseWalk, state_words, walk_course
-from engine.setup_file import find_line
+from slopetune.engine import SetupError, load_setup
+from slopetune.engine.course_walk import DEFAULT_STEP_MM, CourseWalk, state_words, walk_course
+from slopetune.engine.setup_file import find_line
 
 from .report import table_cell as _fmt
 

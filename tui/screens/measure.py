@@ -17,9 +17,9 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Static
 
-from engine import Setup, check_value
-from engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
-from engine.setup_model import cross_field_problems, rule_for
+from slopetune.engine import Setup, check_value
+from slopetune.engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
+from slopetune.engine.setup_model import cross_field_problems, rule_for
 
 # Words from files and setups may hold brackets: never read them as markup.
 Plain = partial(Static, markup=False)

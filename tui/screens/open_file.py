@@ -50,7 +50,7 @@ def _folder_words(folder: Path) -> str:
 def _describe(path: Path) -> tuple[Optional[str], Optional[str]]:
     """(setup name, None) when the file loads as a setup, else (None, one-line problem)."""
     # Imported here: the engine pulls in numpy, which the list must not wait for at push time.
-    from engine import SetupError, load_setup
+    from slopetune.engine import SetupError, load_setup
 
     try:
         loaded = load_setup(path)

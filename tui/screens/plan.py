@@ -21,8 +21,8 @@ from textual.screen import ModalScreen
 from textual.timer import Timer
 from textual.widgets import Input, Static
 
-from engine import Setup
-from engine.goal_seek import (
+from slopetune.engine import Setup
+from slopetune.engine.goal_seek import (
     AddBallast, CgHeight, Compound, LeverError, MoveBallast, Overdrive, Plan, Target,
     angle_value_deg, plan,
 )
@@ -166,7 +166,7 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
 
     def _defaults(self) -> tuple[str, float]:
         """A first target a builder would likely ask for: push the handover (or balance) up 2°."""
-        from engine import analyse
+        from slopetune.engine import analyse
 
         a = analyse(self.setup, [self.setup.terrain.slope_deg])
         name = "handover" if a.overdrive.overdriven_axle is not None else "balance"

@@ -12,8 +12,8 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import NamedTuple, Optional
 
-from engine import BallastItem, Setup, check_value
-from engine.setup_model import cross_field_problems
+from slopetune.engine import BallastItem, Setup, check_value
+from slopetune.engine.setup_model import cross_field_problems
 
 from ..units import Units
 
@@ -228,7 +228,7 @@ def clear(setup: Setup, row: Row) -> Edit:
 
 def toggle_drive_mode(setup: Setup) -> Edit:
     """Switch between an overdrive percentage and gear stages that give the same ratio."""
-    from engine.overdrive import gear_overdrive_pct  # not on the way to the first frame
+    from slopetune.engine.overdrive import gear_overdrive_pct  # not on the way to the first frame
 
     d = setup.driveline
     if d.uses_stages:

@@ -28,7 +28,7 @@ from .line_strips import changed_regions, text_strip
 from .style_cache import StyleCache
 
 if TYPE_CHECKING:
-    from engine import Analysis
+    from slopetune.engine import Analysis
 
 # plotext draws in these standard colours; `render` swaps them for the theme's styles, so the
 # numbers are tags, not colours.

@@ -19,7 +19,7 @@ from textual.message import Message
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
 
-from engine import Setup
+from slopetune.engine import Setup
 
 from . import form_fields as ff
 from .line_strips import text_strip
