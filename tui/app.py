@@ -4,8 +4,8 @@ State lives here (the setup, the file it came from, the baseline, the display un
 shows what the app hands it. A key in the form changes the setup and its value at once; a key on
 its own redraws the flag, the words and the chart in one frame. While a key is held the words
 update at most 12 times a second and the chart, one frame after them, 5 times, always ending on
-the latest value, so a slow link never queues up frames. The modal screens (save-as, open, help, measuring, and the
-course and plan screens when they are installed) are imported when first used.
+the latest value, so a slow link never queues up frames. File actions live in `app_files.py`, the
+modal screens (imported when first used) in `app_screens.py`.
 
 The first frame shows the title, a placeholder flag and the form before numpy, the analysis or
 plotext is even imported (together they cost more than Textual's whole start): the flag, the words
@@ -15,12 +15,11 @@ and then the chart follow a frame or two later, as soon as the first analysis is
 from __future__ import annotations
 
 import gc
-import importlib
 import math
 import time
 from functools import lru_cache
 from pathlib import Path
-from typing import TYPE_CHECKING, Callable, ClassVar, Iterable, NamedTuple, Optional
+from typing import TYPE_CHECKING, ClassVar, Iterable, NamedTuple, Optional
 
 from textual import on
 from textual.app import App, ComposeResult, SystemCommand
@@ -32,6 +31,9 @@ from textual.widgets import Footer, Static
 
 from slopetune.engine import LoadedSetup, Setup, SetupError, load_setup  # numpy-free: engine loads names lazily
 
+from .app_files import FileActions
+from .app_screens import ScreenActions
+from .throttle import Throttle
 from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
 from .widgets.status_pane import FlagLine, StatusPane
@@ -55,40 +57,6 @@ SHORT_CAUTION = "Static model: wind-up loads gears and motors; bench-test hands 
 # grouped keys are drawn side by side: the slash keeps "Up/Dn" readable
 ASCII_KEYS = {"up": "Up", "down": "/Dn", "left": "Lt", "right": "/Rt", "shift+left": "S-Lt",
               "shift+right": "S-Rt"}
-
-
-class Throttle:
-    """Call `run` at once, then at most once per `every_s`; calls in between book one trailing run."""
-
-    def __init__(self, app: App, every_s: float, run: Callable[[], None]) -> None:
-        self.app, self.every_s, self.run = app, every_s, run
-        self._last = -math.inf
-        self._timer = None
-
-    def __call__(self) -> None:
-        if self._timer is not None:
-            return  # the trailing run will see the latest state
-        wait = self._last + self.every_s - time.monotonic()
-        if wait <= 0:
-            self._fire()
-        else:
-            self._timer = self.app.set_timer(wait, self._trailing)
-
-    @property
-    def pending(self) -> bool:
-        return self._timer is not None
-
-    def mark(self) -> None:
-        """`run` was just called from elsewhere: count it for the rate."""
-        self._last = time.monotonic()
-
-    def _trailing(self) -> None:
-        self._timer = None
-        self._fire()
-
-    def _fire(self) -> None:
-        self._last = time.monotonic()
-        self.run()
 
 
 class Baseline(NamedTuple):
@@ -146,7 +114,7 @@ class TunerScreen(Screen):
             self.call_after_refresh(self.query_one(SetupForm).focus)
 
 
-class SlopeTuneApp(App[int]):
+class SlopeTuneApp(FileActions, ScreenActions, App[int]):
     """slopetune's tuner. `run()` returns the exit code."""
 
     CSS_PATH = "app.tcss"
@@ -330,119 +298,17 @@ class SlopeTuneApp(App[int]):
         if message.note:
             self._note(message.note)
 
-    # ----- modal screens (made elsewhere; imported when first used)
-
-    def _screen_class(self, module: str, name: str):
-        try:
-            mod = importlib.import_module(module)
-        except ModuleNotFoundError as exc:
-            if exc.name and module.startswith(exc.name):
-                return None
-            raise
-        return getattr(mod, name, None)
-
-    def _ask(self, question: str, yes: str, no: str, then: Callable[[], None]) -> None:
-        """Ask a yes/no question; run `then` only on yes."""
-        confirm = self._screen_class("slopetune.tui.screens.confirm", "ConfirmScreen")
-        if confirm is None:
-            self._note(f"{question} (no confirm screen in this build: not done)", "error")
-            return
-        self.push_screen(confirm(question, yes_label=yes, no_label=no), lambda ok: then() if ok else None)
-
-    def _push(self, module: str, name: str, make: Callable, then: Optional[Callable] = None,
-              what: str = "that screen") -> None:
-        cls = self._screen_class(module, name)
-        if cls is None:
-            self._note(f"{what} is not in this build", "error")
-            return
-        self.push_screen(make(cls), then)
-
-    # ----- files
-
-    def action_save(self) -> None:
-        """Save the setup to its file (asks for a name the first time)."""
-        if self.path is None:
-            self.action_save_as()
-        else:
-            self._save_to(self.path, force=False)
-
-    def action_save_as(self) -> None:
-        """Save the setup under another name."""
-        initial = str(self.path) if self.path else str(Path("setups") / "my-setup.toml")
-
-        def chosen(answer: Optional[str]) -> None:
-            if not answer:
-                return
-            target = Path(answer).expanduser()
-            if target.suffix != ".toml":
-                target = target.with_name(target.name + ".toml")
-            same = self.path is not None and _same_file(target, self.path)
-            if target.exists() and not same:
-                self._ask(f"{target} exists. Replace it?", "Replace", "Keep it",
-                          lambda: self._save_to(target, force=True))
-            else:
-                self._save_to(target, force=False)
-
-        self._push("slopetune.tui.screens.path_prompt", "PathPromptScreen",
-                   lambda cls: cls("Save setup as", initial=initial), chosen, "save-as")
-
-    def _save_to(self, target: Path, force: bool) -> None:
-        from .setup_writer import FileChangedOnDisk, SaveError, save_setup
-
-        loaded = self.loaded
-        try:
-            saved = save_setup(loaded, self.setup, target, force=force)
-        except FileChangedOnDisk:
-            self._ask(f"{target.name} changed on disk since it was opened. Overwrite it?",
-                      "Overwrite", "Cancel", lambda: self._save_to(target, force=True))
-            return
-        except SaveError as exc:
-            self._note(f"Not saved: {exc}", "error")
-            self.notify(str(exc), title="Not saved", severity="error")
-            return
-        self.loaded = saved
-        self.path = saved.path
-        self.saved_setup = self.setup
-        self._show_title()
-        self._note(f"Saved {saved.path}")
-
-    def action_open(self) -> None:
-        """Open another setup file."""
-        def chosen(path: Optional[Path]) -> None:
-            if path is None:
-                return
-            if self.setup != self.saved_setup:
-                self._ask("Discard the unsaved changes and open another file?", "Discard", "Keep editing",
-                          lambda: self._open(path))
-            else:
-                self._open(path)
-
-        self._push("slopetune.tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen, "open")
-
-    def _open(self, path: Path) -> None:
-        try:
-            loaded = load_setup(path)
-        except SetupError as exc:
-            self._note(str(exc), "error")
-            return
-        self.loaded, self.path = loaded, loaded.path
-        self.saved_setup = loaded.setup
-        self._replace_setup(loaded.setup, loaded.warnings[0] if loaded.warnings else f"Opened {path}")
-
-    def _folders(self) -> list[Path]:
-        out: list[Path] = []
-        for folder in (self.path.parent if self.path else None, Path.cwd() / "setups", Path.cwd()):
-            if folder is not None and folder.is_dir() and all(not _same_file(folder, f) for f in out):
-                out.append(folder)
-        return out
-
     # ----- baseline
+
+    def _set_baseline(self, setup: Optional[Setup], label: str = "") -> None:
+        """Compare with `setup` from now on (None: stop comparing)."""
+        self.baseline = Baseline(setup, label) if setup is not None else None
+        self._recompute(baseline_too=True)
+        self._show_title()
 
     def action_pin_baseline(self) -> None:
         """Pin the current setup as the baseline to compare against."""
-        self.baseline = Baseline(self.setup, "pinned")
-        self._recompute(baseline_too=True)
-        self._show_title()
+        self._set_baseline(self.setup, "pinned")
         self._note("Baseline pinned (dimmed on the chart); x clears it")
 
     def action_open_baseline(self) -> None:
@@ -455,9 +321,7 @@ class SlopeTuneApp(App[int]):
             except SetupError as exc:
                 self._note(str(exc), "error")
                 return
-            self.baseline = Baseline(loaded.setup, Path(path).name)
-            self._recompute(baseline_too=True)
-            self._show_title()
+            self._set_baseline(loaded.setup, Path(path).name)
             self._note(f"Baseline: {path}")
 
         self._push("slopetune.tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen,
@@ -467,9 +331,7 @@ class SlopeTuneApp(App[int]):
         """Stop comparing with a baseline."""
         if self.baseline is None:
             return
-        self.baseline = None
-        self._recompute(baseline_too=True)
-        self._show_title()
+        self._set_baseline(None)
         self._note("Baseline cleared")
 
     # ----- display
@@ -486,63 +348,6 @@ class SlopeTuneApp(App[int]):
         self.full_range = not self.full_range
         self._recompute(baseline_too=True)
         self._show_title()
-
-    # ----- other screens
-
-    def action_help(self) -> None:
-        """Keys, what the chart and flags mean, and the cautions."""
-        self._push("slopetune.tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only), None, "help")
-
-    def action_measure(self) -> None:
-        """Turn scale readings into front bias, CG height and mu."""
-        def apply(values: Optional[dict]) -> None:
-            if not values:
-                return
-            from slopetune.engine import check_value
-
-            setup, refused = self.setup, []
-            for key, value in values.items():
-                problem = check_value(setup, key, value)
-                if problem:
-                    refused.append(f"{key}: {problem}")
-                else:
-                    setup = setup.with_value(key, value)
-            self._replace_setup(setup, "; ".join(refused) if refused else
-                                "Measured: " + ", ".join(f"{k.split('.')[-1]} {v:.3g}" for k, v in values.items()))
-
-        self._push("slopetune.tui.screens.measure", "MeasureScreen", lambda cls: cls(self.setup), apply, "measuring")
-
-    def action_course(self) -> None:
-        """Walk the rig over the setup's course (front and rear on different ground)."""
-        self._push("slopetune.tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
-
-    def action_plan(self) -> None:
-        """Let the planner suggest a setup; apply it if accepted."""
-        before = self.setup
-
-        def apply(setup: Optional[Setup]) -> None:
-            if setup is None:
-                return
-            note = "Planned setup applied (not saved yet)"
-            if self.baseline is None:
-                # the setup before the plan becomes the baseline: the chart overlays it and the
-                # status says how each named angle moved
-                self.baseline = Baseline(before, "before plan")
-                self._recompute(baseline_too=True)
-                self._show_title()
-                note += "; the setup before it is the baseline (x clears it)"
-            self._replace_setup(setup, note)
-
-        self._push("slopetune.tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
-
-    def action_quit(self) -> None:
-        """Quit; asks first when there are unsaved changes."""
-        if self.setup != self.saved_setup:
-            where = self.path.name if self.path else "the demo copy"
-            self._ask(f"Quit without saving the changes to {where}?", "Quit", "Keep editing",
-                      lambda: self.exit(0))
-        else:
-            self.exit(0)
 
     # ----- command palette
 
@@ -563,10 +368,3 @@ class SlopeTuneApp(App[int]):
             ("Help", "Keys, chart, flags and cautions", self.action_help),
         ):
             yield SystemCommand(title, help_text, action)
-
-
-def _same_file(a: Path, b: Path) -> bool:
-    try:
-        return Path(a).resolve() == Path(b).resolve()
-    except OSError:
-        return False

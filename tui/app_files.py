@@ -1,0 +1,110 @@
+"""The tuner's file actions: save, save as, open and quit (which asks about unsaved changes).
+
+A mixin of `SlopeTuneApp`; the state it reads and writes (`loaded`, `path`, `setup`,
+`saved_setup`) lives on the app.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Optional
+
+from slopetune.engine import SetupError, load_setup
+
+
+class FileActions:
+    """Save, save as, open and quit for `SlopeTuneApp`."""
+
+    def action_save(self) -> None:
+        """Save the setup to its file (asks for a name the first time)."""
+        if self.path is None:
+            self.action_save_as()
+        else:
+            self._save_to(self.path, force=False)
+
+    def action_save_as(self) -> None:
+        """Save the setup under another name."""
+        initial = str(self.path) if self.path else str(Path("setups") / "my-setup.toml")
+
+        def chosen(answer: Optional[str]) -> None:
+            if not answer:
+                return
+            target = Path(answer).expanduser()
+            if target.suffix != ".toml":
+                target = target.with_name(target.name + ".toml")
+            same = self.path is not None and _same_file(target, self.path)
+            if target.exists() and not same:
+                self._ask(f"{target} exists. Replace it?", "Replace", "Keep it",
+                          lambda: self._save_to(target, force=True))
+            else:
+                self._save_to(target, force=False)
+
+        self._push("slopetune.tui.screens.path_prompt", "PathPromptScreen",
+                   lambda cls: cls("Save setup as", initial=initial), chosen, "save-as")
+
+    def _save_to(self, target: Path, force: bool) -> None:
+        from .setup_writer import FileChangedOnDisk, SaveError, save_setup
+
+        loaded = self.loaded
+        try:
+            saved = save_setup(loaded, self.setup, target, force=force)
+        except FileChangedOnDisk:
+            self._ask(f"{target.name} changed on disk since it was opened. Overwrite it?",
+                      "Overwrite", "Cancel", lambda: self._save_to(target, force=True))
+            return
+        except SaveError as exc:
+            self._note(f"Not saved: {exc}", "error")
+            self.notify(str(exc), title="Not saved", severity="error")
+            return
+        self.loaded = saved
+        self.path = saved.path
+        self.saved_setup = self.setup
+        self._show_title()
+        self._note(f"Saved {saved.path}")
+
+    def action_open(self) -> None:
+        """Open another setup file."""
+        def chosen(path: Optional[Path]) -> None:
+            if path is None:
+                return
+            if self.setup != self.saved_setup:
+                self._ask("Discard the unsaved changes and open another file?", "Discard", "Keep editing",
+                          lambda: self._open(path))
+            else:
+                self._open(path)
+
+        self._push("slopetune.tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen, "open")
+
+    def _open(self, path: Path) -> None:
+        try:
+            loaded = load_setup(path)
+        except SetupError as exc:
+            self._note(str(exc), "error")
+            return
+        self.loaded, self.path = loaded, loaded.path
+        self.saved_setup = loaded.setup
+        self._replace_setup(loaded.setup, loaded.warnings[0] if loaded.warnings else f"Opened {path}")
+
+    def _folders(self) -> list[Path]:
+        out: list[Path] = []
+        for folder in (self.path.parent if self.path else None, Path.cwd() / "setups", Path.cwd()):
+            if folder is not None and folder.is_dir() and all(not _same_file(folder, f) for f in out):
+                out.append(folder)
+        return out
+
+    def action_quit(self) -> None:
+        """Quit; asks first when there are unsaved changes."""
+        if self.setup != self.saved_setup:
+            where = self.path.name if self.path else "the demo copy"
+            self._ask(f"Quit without saving the changes to {where}?", "Quit", "Keep editing",
+                      lambda: self.exit(0))
+        else:
+            self.exit(0)
+
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    try:
+        return Path(a).resolve() == Path(b).resolve()
+    except OSError:
+        return False

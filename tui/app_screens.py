@@ -1,0 +1,85 @@
+"""The tuner's modal screens: each is imported when first used and hands its answer back.
+
+A mixin of `SlopeTuneApp`: help, measuring, the course view and the planner, plus the yes/no
+question every other action asks through `_ask`.
+"""
+
+from __future__ import annotations
+
+import importlib
+from typing import Callable, Optional
+
+from slopetune.engine import Setup
+
+
+class ScreenActions:
+    """Pushing the tuner's modal screens for `SlopeTuneApp`."""
+
+    def _screen_class(self, module: str, name: str):
+        try:
+            mod = importlib.import_module(module)
+        except ModuleNotFoundError as exc:
+            if exc.name and module.startswith(exc.name):
+                return None
+            raise
+        return getattr(mod, name, None)
+
+    def _ask(self, question: str, yes: str, no: str, then: Callable[[], None]) -> None:
+        """Ask a yes/no question; run `then` only on yes."""
+        confirm = self._screen_class("slopetune.tui.screens.confirm", "ConfirmScreen")
+        if confirm is None:
+            self._note(f"{question} (no confirm screen in this build: not done)", "error")
+            return
+        self.push_screen(confirm(question, yes_label=yes, no_label=no), lambda ok: then() if ok else None)
+
+    def _push(self, module: str, name: str, make: Callable, then: Optional[Callable] = None,
+              what: str = "that screen") -> None:
+        cls = self._screen_class(module, name)
+        if cls is None:
+            self._note(f"{what} is not in this build", "error")
+            return
+        self.push_screen(make(cls), then)
+
+    def action_help(self) -> None:
+        """Keys, what the chart and flags mean, and the cautions."""
+        self._push("slopetune.tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only), None, "help")
+
+    def action_measure(self) -> None:
+        """Turn scale readings into front bias, CG height and mu."""
+        def apply(values: Optional[dict]) -> None:
+            if not values:
+                return
+            from slopetune.engine import check_value
+
+            setup, refused = self.setup, []
+            for key, value in values.items():
+                problem = check_value(setup, key, value)
+                if problem:
+                    refused.append(f"{key}: {problem}")
+                else:
+                    setup = setup.with_value(key, value)
+            self._replace_setup(setup, "; ".join(refused) if refused else
+                                "Measured: " + ", ".join(f"{k.split('.')[-1]} {v:.3g}" for k, v in values.items()))
+
+        self._push("slopetune.tui.screens.measure", "MeasureScreen", lambda cls: cls(self.setup), apply, "measuring")
+
+    def action_course(self) -> None:
+        """Walk the rig over the setup's course (front and rear on different ground)."""
+        self._push("slopetune.tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
+
+    def action_plan(self) -> None:
+        """Let the planner suggest a setup; apply it if accepted."""
+        before = self.setup
+
+        def apply(setup: Optional[Setup]) -> None:
+            if setup is None:
+                return
+            note = "Planned setup applied (not saved yet)"
+            if self.baseline is None:
+                # the setup before the plan becomes the baseline: the chart overlays it and the
+                # status says how each named angle moved
+                self._set_baseline(before, "before plan")
+                note += "; the setup before it is the baseline (x clears it)"
+            self._replace_setup(setup, note)
+
+        self._push("slopetune.tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
