@@ -260,9 +260,7 @@ def analyse(setup: Setup, slopes_deg=None, *, accel_g: Optional[float] = None, l
         "front_lift": _finite_or_none(st.front_lift_angle_deg(b, h, a)),
         "rear_lift": _finite_or_none(st.rear_lift_angle_deg(L, b, h, a)),
         "sidehill_roll": st.sidehill_roll_angle_deg(rig.track_mm, h),
-        # sideways both axles slide together: the static-load-weighted mu
-        "sidehill_slide": st.sidehill_slide_angle_deg(
-            (b * model.mu_f[0] + (L - b) * model.mu_r[0]) / L),
+        "sidehill_slide": st.sidehill_slide_angle_deg(model.mu_f[0], model.mu_r[0]),
         "handover": _handover_deg(climb),
         "handover_no_load": _handover_deg(no_load),
         "max_grade": max_grade,

@@ -9,6 +9,8 @@ References
 .. [2] R. N. Jazar, *Vehicle Dynamics: Theory and Application*, Springer, 2008, ch. 2 (vehicle
    on an inclined road, tilting angle).
 .. [3] NHTSA, static stability factor ``SSF = T/(2h)``, 68 FR 59250, 2003.
+.. [4] Serway & Beichner, *Physics for Scientists and Engineers*, 5th ed., ch. 5 (static
+   friction on an incline: ``μ_s = tan α``).
 """
 
 from __future__ import annotations
@@ -163,9 +165,29 @@ def sidehill_roll_angle_deg(track_mm, cg_height_mm):
     return float(np.degrees(np.arctan2(track_mm / 2.0, cg_height_mm)))
 
 
-def sidehill_slide_angle_deg(mu_static):
-    """Side slope where the tyres start to slide sideways: ``tan φ = μ_s``."""
-    return float(np.degrees(np.arctan(mu_static)))
+def sidehill_slide_angle_deg(mu_static_front, mu_static_rear=None):
+    """Side slope where the first axle starts to slide sideways, driveline unwound.
+
+    Parameters
+    ----------
+    mu_static_front, mu_static_rear : float
+        Static friction of each axle. [-] The rear defaults to the front's.
+
+    Returns
+    -------
+    float
+        ``atan(min(μ_s,f, μ_s,r))``. [deg]
+
+    Notes
+    -----
+    Across a side slope φ each axle must hold its share of the weight's downhill component; with
+    no yaw moment that share is in proportion to its own load, ``F_y,i = N_i tan φ``, so axle i
+    slides once ``tan φ > μ_s,i`` whatever its load: the axle with the lower mu goes first, not a
+    load-weighted mean of the two (block on an incline, ``μ_s = tan α`` [4]_). An axle already
+    scrubbing under driveline wind-up has no sideways grip to spare and goes earlier.
+    """
+    rear = mu_static_front if mu_static_rear is None else mu_static_rear
+    return float(np.degrees(np.arctan(min(mu_static_front, rear))))
 
 
 def static_stability_factor(track_mm, cg_height_mm):

@@ -234,14 +234,22 @@ def sidehill_roll_deg(rig: RefRig) -> float:
 
 
 def sidehill_slide_deg(rig: RefRig) -> float:
-    """Side slope where the sideways grip of both axles (level-ground load split) runs out."""
+    """Side slope where the first axle slides sideways (driveline unwound).
+
+    Each axle's static share of the weight, ``W b/L`` front and ``W (L − b)/L`` rear, stands
+    on the side slope like a block on an incline (Serway & Beichner ch. 5): it needs a sideways
+    force of that share times ``sin φ`` and can give at most ``μ_s`` times that share times
+    ``cos φ``. The first of the two spare-grip curves to cross zero is the slide.
+    """
     W, L, b = rig.weight_g, rig.wheelbase_mm, rig.cg_from_rear_mm
+    slides = []
+    for share, mu in ((W * b / L, rig.mu_front[0]), (W * (L - b) / L, rig.mu_rear[0])):
+        def spare(t, share=share, mu=mu):
+            c, s = math.cos(math.radians(t)), math.sin(math.radians(t))
+            return (mu * share * c - share * s) / W
 
-    def spare(t):
-        c, s = math.cos(math.radians(t)), math.sin(math.radians(t))
-        return rig.mu_front[0] * W * c * b / L + rig.mu_rear[0] * W * c * (L - b) / L - W * s
-
-    return _crossing(spare, 0.0, 89.99, rising=False)
+        slides.append(_crossing(spare, 0.0, 89.99, rising=False))
+    return min(t for t in slides if t is not None)
 
 
 def handover_deg(rig: RefRig) -> Optional[float]:

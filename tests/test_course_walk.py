@@ -5,8 +5,8 @@ Sources named beside each check:
   Gillespie, *Fundamentals of Vehicle Dynamics*, ch. 2, and the wind-up rule of MODEL §5);
 - planar rigid-body equilibrium, three equations (Meriam & Kraige, *Engineering Mechanics:
   Statics*, ch. 3) and Coulomb limits (Serway & Beichner, 5th ed., ch. 5), written out here;
-- events are defined as the positions where a per-position state changes: recomputed here from
-  the per-position arrays with a plain loop.
+- states before, on and after a change of ground worked by hand from the geometry and the
+  uniform-slope rules, and the events placed against them.
 """
 
 from __future__ import annotations
@@ -113,60 +113,74 @@ def test_crest_front_on_flat_rear_on_a_steep_face():
         assert abs(gripping[0]) <= gripping[1] * (1 + 1e-12)
 
 
-def _changes(values):
-    return [i for i in range(1, len(values)) if values[i] != values[i - 1]]
+def test_flat_to_steep_ramp_changes_state_only_in_the_corner_window_worked_by_hand():
+    """Worked by hand: flat ground, a concave corner at x = 1000 mm, then a straight 50° ramp.
 
+    Rig: 2000 g, L 300, 50 % bias, h 60, tyres 110 mm (r 55), no overdrive, μ_s 1.0, no rolling
+    resistance or throttle. A wheel of radius r leaves the flat when its centre is r·tan(θ/2) =
+    55·tan 25° = 25.647 mm short of the corner (the offset lines y = r and y = (x − 1000) tan θ +
+    r/cos θ meet there), so the front leaves it at rear x = 1000 − 25.647 − 300 = 674.353 and the
+    rear at 974.353 (Serra's disc dilation, by hand). Before that the rig stands level: F_req = 0,
+    it holds (state "none"). Once both wheels are on the ramp it is the uniform slope: it holds
+    only while W sin θ <= μ_s W cos θ (Gillespie ch. 2; Serway & Beichner ch. 5), and tan 50° =
+    1.192 > 1.0, so both axles slip. The front never lifts: its lift angle atan(150/60) = 68.2°.
+    So the walk starts "none", ends "both", and every state change lies between 674.353 and 974.353.
+    """
+    from slopetune.engine import Driveline, Grip, Rig, Setup, Terrain
 
-@pytest.mark.parametrize("path", DEMOS, ids=lambda p: p.name)
-def test_events_are_where_the_states_change(path):
-    """Each event sits at the first position of a new state, and every change has its event
-    (definition of the event list, recomputed with a plain loop)."""
-    walk = walk_course(load_setup(path).setup, 2.0)
-    by_kind = {}
+    th = math.radians(50.0)
+    setup = Setup(name="corner rig", rig=Rig(2000.0, 300.0, 50.0, 60.0, 240.0, 110.0, 110.0, ()),
+                  driveline=Driveline(0.0), grip=Grip(1.0, 0.8, 0.0), terrain=Terrain(0.0, 0.0, "climb"))
+    setup = _with_course(setup, [[0.0, 0.0], [1000.0, 0.0], [1600.0, 600.0 * math.tan(th)]])
+    walk = walk_course(setup, 1.0)
+    x = walk.rear_x_mm
+    lo, hi = 1000.0 - 55.0 * math.tan(th / 2) - 300.0, 1000.0 - 55.0 * math.tan(th / 2)
+    assert (lo, hi) == pytest.approx((674.353, 974.353), abs=1e-3)
+    assert x[0] < lo - 100 and x[-1] > hi + 100
+    before, after = x < lo - 1e-6, x > hi + 1e-6
+    assert set(np.asarray(walk.slipping)[before]) == {"none"}
+    assert set(np.asarray(walk.slipping)[after]) == {"both"}
+    assert all(up is None for up in walk.lifted)
+    kinds = [e.kind for e in walk.events]
+    assert "cannot_hold" in kinds
     for e in walk.events:
-        by_kind.setdefault(e.kind, []).append(e.index)
-        assert walk.rear_x_mm[e.index] == e.rear_x_mm
-    lifted = walk.lifted
-    lift_changes = _changes(lifted)
-    assert sorted(by_kind.get("front_lifts", []) + by_kind.get("rear_lifts", [])
-                  + by_kind.get("front_down", []) + by_kind.get("rear_down", [])) == sorted(
-        [i for i in lift_changes if lifted[i]] + [i for i in lift_changes if lifted[i - 1]])
-    grounded = [i for i, up in enumerate(lifted) if up is None]
-    slips = [walk.slipping[i] for i in grounded]
-    slip_changes = [grounded[k] for k in _changes(slips)]
-    slip_kinds = ("handover", "hand_back", "cannot_hold", "holds_again")
-    assert sorted(i for k in slip_kinds for i in by_kind.get(k, [])) == slip_changes
-    for i in by_kind.get("cannot_hold", []):
-        assert walk.slipping[i] == "both"
-    for i in by_kind.get("handover", []):
-        assert walk.slipping[i] == walk.overdriven
-    touch = walk.belly_touch.tolist()
-    assert sorted(by_kind.get("belly_touches", []) + by_kind.get("belly_clear", [])) == _changes(touch)
-    for i in by_kind.get("belly_touches", []):
-        assert touch[i] and not touch[i - 1]
+        assert lo - 1e-6 <= e.rear_x_mm <= hi + 1.0 + 1e-6, e  # first position in the new state
 
 
-def test_demo_courses_show_what_they_were_built_for():
-    """Kestrel Knuckle: handover on the ramp, the belly on the knuckle, and no hold on the 55° face,
-    which is steeper than the uniform model's max grade (engine.analyse); Bramble Steps: the
-    front spins up the ledges and the rig high-centres on the boulder."""
-    kinds = {}
-    for path in DEMOS:
-        walk = walk_course(load_setup(path).setup)
-        kinds[path.stem] = {e.kind for e in walk.events}
-    assert {"handover", "cannot_hold", "belly_touches"} <= kinds["course-kestrel-knuckle"]
-    assert {"handover", "belly_touches"} <= kinds["course-bramble-steps"]
+def test_kestrel_knuckle_states_worked_by_hand():
+    """Worked by hand for the demo file (MODEL §2, §3, §5 rule; Gillespie ch. 2; Shigley ch. 13).
+
+    Effective rig with its ballast: W = 2380 + 96 − 38 = 2438 g,
+    b = (2380·0.575·313 + 96·313 − 38·120)/2438 = 453828.5/2438 = 186.15 mm,
+    h = (2380·88 + 96·40 − 38·45)/2438 = 211570/2438 = 86.78 mm. Overdrive k = (40/13)/(38/13)·114/112
+    = 1.071: the front is the fast axle. μ_s,f 1.05, μ_k,f 0.85, μ_s,r 1.0, μ_k,r 0.8, c_rr 0.03.
+    Per unit W:
+    - level start: N_f = 186.15/313 = 0.5947, N_r = 0.4053, F_req = 0.03; μ_s,f N_f − μ_s,r N_r =
+      0.6244 − 0.4053 = 0.219 > F_req, so the slow rear lets go first (dragged at 0.8·0.4053 = 0.324);
+      the front carries 0.03 + 0.324 = 0.354 < 0.624: state "rear".
+    - ramp, atan(213/400) = 28.03° (cos 0.8827, sin 0.4700): N_f = (186.15·0.8827 − 86.78·0.4700)/313
+      = 0.3946, N_r = 0.4881, F_req = 0.4700 + 0.03·0.8827 = 0.4965; 0.4143 − 0.4881 = −0.074 < F_req,
+      so the overdriven front lets go (carries 0.85·0.3946 = 0.3354); the rear carries
+      0.4965 − 0.3354 = 0.1611 < 0.4881: state "front", a handover between the two.
+    - face, atan(314/220) = 55.0°: even all the grip, at most 1.05 W cos θ, is short of
+      W (sin θ + 0.03 cos θ), since tan 55° = 1.43 > 1.02: both slip ("cannot_hold" before it).
+    """
     setup = load_setup(ROOT / "setups" / "course-kestrel-knuckle.toml").setup
-    face, ramp = math.degrees(math.atan2(314, 220)), math.degrees(math.atan2(213, 400))  # from the file
-    a = analyse(setup, [face, ramp])
-    assert a.angles_deg["max_grade"] < face
     walk = walk_course(setup, 5.0)
     p = walk.pose
+    face, ramp = math.degrees(math.atan2(314, 220)), math.degrees(math.atan2(213, 400))
     on_face = (np.abs(p.front_angle_deg - face) < 1e-6) & (np.abs(p.rear_angle_deg - face) < 1e-6)
     on_ramp = (np.abs(p.front_angle_deg - ramp) < 1e-6) & (np.abs(p.rear_angle_deg - ramp) < 1e-6)
-    assert on_face.any() and on_ramp.any()
-    assert set(walk.traction.state[on_face].tolist()) == {int(a.sweep.traction.state[0])} == {BOTH}
-    assert set(walk.traction.state[on_ramp].tolist()) == {int(a.sweep.traction.state[1])}
+    level = (np.abs(p.front_angle_deg) < 1e-9) & (np.abs(p.rear_angle_deg) < 1e-9) & (walk.rear_x_mm < 400)
+    assert on_face.any() and on_ramp.any() and level.any()
+    slipping = np.asarray(walk.slipping)
+    assert set(slipping[level]) == {"rear"}
+    assert set(slipping[on_ramp]) == {"front"}
+    assert set(slipping[on_face]) == {"both"}
+    first_ramp, first_face = walk.rear_x_mm[on_ramp][0], walk.rear_x_mm[on_face][0]
+    kinds_before = lambda x_mm: {e.kind for e in walk.events if e.rear_x_mm <= x_mm}  # noqa: E731
+    assert "handover" in kinds_before(first_ramp)
+    assert "cannot_hold" in kinds_before(first_face)
 
 
 def test_positions_with_no_ground_for_the_front_are_lifted():

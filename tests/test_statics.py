@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
@@ -64,11 +65,30 @@ def test_static_stability_factor_nhtsa():
     assert_allclose(engine.analyse(setup).angles_deg["sidehill_roll"], 45.0, atol=1e-9)
 
 
-def test_sidehill_slide_is_atan_mu_serway_values():
+def test_sidehill_slide_equal_mu_serway_values():
     # Serway & Beichner table 5.2, rubber on dry concrete μ_s 1.0: slides sideways at atan(1.0) = 45 deg;
     # block on an incline slides at tan α = μ_s (Serway & Beichner ch. 5).
     setup = plain_setup(mu=(1.0, 0.8))
     assert_allclose(engine.analyse(setup).angles_deg["sidehill_slide"], 45.0, atol=1e-9)
+
+
+@pytest.mark.parametrize("front_mu, rear_mu", [(1.0, 0.6), (0.6, 1.0)])
+def test_sidehill_slide_per_axle_mu_worked_by_hand(front_mu, rear_mu):
+    """Worked by hand (block on an incline per axle, Serway & Beichner ch. 5), 60 % front bias.
+
+    Each axle stands on the side slope with its own static share of the weight: 0.6 W front,
+    0.4 W rear. With μ_s 1.0 on one axle and 0.6 on the other, the 0.6 axle (share s) needs
+    s sin φ sideways and can give 0.6 s cos φ:
+      φ = 30.9°: rear 0.4·0.51504 = 0.20542 W needed, 0.6·0.4·0.85811 = 0.20595 W available: holds;
+      φ = 31.0°: 0.20602 W needed, 0.20572 W available: slides.
+    The crossing is tan φ = 0.6, φ = 30.964°, whichever end has the low mu. A load-weighted mean
+    (0.6·1.0 + 0.4·0.6 = 0.84) would say 40.03°, the both-ends mean (0.8) 38.66°.
+    """
+    grip = Grip(1.0, 0.8, 0.0, front_mu_static=front_mu, front_mu_kinetic=0.5,
+                rear_mu_static=rear_mu, rear_mu_kinetic=0.5)
+    setup = dataclasses.replace(plain_setup(front_bias_pct=60.0), grip=grip)
+    assert engine.analyse(setup).angles_deg["sidehill_slide"] == pytest.approx(30.964, abs=1e-3)
+    assert ss.sidehill_slide_angle_deg(front_mu, rear_mu) == pytest.approx(30.964, abs=1e-3)
 
 
 # --- rules of thumb of the trade ---------------------------------------------------------------
@@ -77,20 +97,22 @@ def _thumb_rig(front_bias_pct, cg_height_mm):
     return engine.analyse(plain_setup(wheelbase_mm=300.0, front_bias_pct=front_bias_pct, cg_height_mm=cg_height_mm))
 
 
-def test_rule_of_thumb_balance_22_lifts_near_68():
-    # common practice, no source: a 60 % front-bias rig whose loads balance at 22 deg lifts its front near 68 deg.
-    h = 0.1 * 300.0 / math.tan(math.radians(22.0))  # the CG height that puts balance at 22 deg
-    a = _thumb_rig(60.0, h)
-    assert a.angles_deg["balance"] == pytest.approx(22.0, abs=1e-6)
-    assert a.angles_deg["front_lift"] == pytest.approx(68.0, abs=1.0)
+def test_balance_and_lift_worked_by_hand_300mm_rig():
+    """Worked by hand (Gillespie ch. 2 grade loads; moments about the wheelbase mid-point):
+    L 300, 60 % bias (b 180), h 75, a round measured height, not one derived from the answer.
 
-
-def test_rule_of_thumb_more_bias_and_lower_cg():
-    # common practice, no source: on that rig (300 mm wheelbase) 65 % bias moves balance to about 31 deg,
-    # and a CG 10 mm lower (at 60 %) moves it to about 25 deg.
-    h = 0.1 * 300.0 / math.tan(math.radians(22.0))
-    assert _thumb_rig(65.0, h).angles_deg["balance"] == pytest.approx(31.0, abs=0.5)
-    assert _thumb_rig(60.0, h - 10.0).angles_deg["balance"] == pytest.approx(25.0, abs=0.5)
+    Balance: N_f = N_r exactly when the weight's line of action passes over the mid-point of the
+    contacts, 30 mm behind the CG along the slope and 75 mm below it: tan θ = 30/75 = 0.4,
+    θ = 21.801°. Front lift: the line passes over the rear contact, tan θ = 180/75 = 2.4,
+    θ = 67.380°. 65 % bias (b 195): tan θ = 45/75 = 0.6, 30.964°. A CG 10 mm lower (h 65):
+    tan θ = 30/65, 24.775°. The trade's rule of thumb for such a rig (balance near 22°, front lift
+    near 68°; 65 % bias about 31°, 10 mm lower about 25°; common practice, no source) agrees.
+    """
+    a = _thumb_rig(60.0, 75.0)
+    assert a.angles_deg["balance"] == pytest.approx(21.801, abs=1e-3)
+    assert a.angles_deg["front_lift"] == pytest.approx(67.380, abs=1e-3)
+    assert _thumb_rig(65.0, 75.0).angles_deg["balance"] == pytest.approx(30.964, abs=1e-3)
+    assert _thumb_rig(60.0, 65.0).angles_deg["balance"] == pytest.approx(24.775, abs=1e-3)
 
 
 # --- the independent reference model -----------------------------------------------------------
@@ -148,12 +170,15 @@ def test_loads_with_throttle_match_reference(setup, accel_g):
 # --- properties over the whole valid input space -----------------------------------------------
 
 @given(rig_setups(), st.lists(st.floats(-89.9, 89.9), min_size=1, max_size=20), st.floats(-1.0, 1.0))
-def test_normal_forces_sum_to_weight_cosine(setup, slopes, accel_g):
-    # Gillespie ch. 2: forces normal to the slope balance, N_f + N_r = W cos θ (any a_x).
+def test_rear_load_from_moments_about_the_front_contact(setup, slopes, accel_g):
+    # A different moment point (Gillespie ch. 2 free-body diagram): the engine takes moments about
+    # the rear contact and gets N_r by difference; here moments about the front contact give the
+    # rear load directly: N_r L = W cos θ (L − b) + W (sin θ + a_x) h.
     a = engine.analyse(setup, slopes, accel_g=accel_g, load="climb")
-    W = a.rig.mass_g
-    assert_allclose(a.sweep.front_normal_g + a.sweep.rear_normal_g, W * np.cos(np.radians(slopes)),
-                    rtol=0, atol=1e-9 * W)
+    W, L, b, h = a.rig.mass_g, a.rig.wheelbase_mm, a.rig.cg_from_rear_mm, a.rig.cg_height_mm
+    t = np.radians(slopes)
+    want = W * (np.cos(t) * (L - b) + (np.sin(t) + accel_g) * h) / L
+    assert_allclose(a.sweep.rear_normal_g, want, rtol=0, atol=1e-9 * W)
 
 
 @given(rig_setups(), st.lists(st.floats(-89.9, 89.9), min_size=1, max_size=20), st.floats(-1.0, 1.0))
