@@ -358,7 +358,7 @@ def test_measure_prefills_and_applies_front_bias():
         text = screen_text(pilot.app)
         _set(screen, "m-total", "2400")
         _set(screen, "m-front", "1500")
-        await pilot.pause()
+        await pilot.pause(0.3)  # the sums wait for typing to settle
         line = str(screen.query_one("#front_bias_pct-result", Static).render())
         await pilot.click("#front_bias_pct-apply")
         return text, line
@@ -386,7 +386,7 @@ def test_measure_cg_height_from_axle_lift():
     async def script(pilot, screen):
         screen.query_one("#m-lifts", Input).focus()
         _set(screen, "m-lifts", typed)
-        await pilot.pause()
+        await pilot.pause(0.3)  # the sums wait for typing to settle
         line = str(screen.query_one("#cg_height_mm-result", Static).render())
         await pilot.press("enter")  # the last field of the section: Enter lands on Apply
         await pilot.pause()
@@ -409,7 +409,7 @@ def test_measure_mu_from_slide_angle_typed():
         screen.query_one("#m-slide", Input).focus()  # focusing selects the text: typing replaces it
         await pilot.pause()
         await pilot.press("3", "0")
-        await pilot.pause()
+        await pilot.pause(0.3)  # the sums wait for typing to settle
         refused = str(screen.query_one("#mu_static-result", Static).render())
         await pilot.press("backspace", "backspace", "4", "0")
         await pilot.pause()
@@ -432,17 +432,17 @@ def test_measure_bad_input_shows_reasons_and_never_applies():
         _set(screen, "m-total", "lots")
         _set(screen, "m-lifts", "100-1096")
         _set(screen, "m-slide", "95")
-        await pilot.pause()
+        await pilot.pause(0.3)  # the sums wait for typing to settle
         why = {f: str(screen.query_one(f"#{f}-why", Static).render()) for f in ("m-total", "m-lifts", "m-slide")}
         disabled = [screen.query_one(f"#{s}-apply", Button).disabled
                     for s in ("front_bias_pct", "cg_height_mm", "mu_static")]
         _set(screen, "m-total", "-5")
-        await pilot.pause()
+        await pilot.pause(0.3)  # the sums wait for typing to settle
         why["negative"] = str(screen.query_one("#m-total-why", Static).render())
         _set(screen, "m-total", "2380")
         _set(screen, "m-front", "3000")  # more than the whole rig: bias over 100 %
         _set(screen, "m-lifts", "400:1500")  # higher than the wheelbase
-        await pilot.pause()
+        await pilot.pause(0.3)  # the sums wait for typing to settle
         bias_line = str(screen.query_one("#front_bias_pct-result", Static).render())
         lift_why = str(screen.query_one("#m-lifts-why", Static).render())
         bias_disabled = screen.query_one("#front_bias_pct-apply", Button).disabled

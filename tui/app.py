@@ -33,6 +33,7 @@ from slopetune.engine import LoadedSetup, Setup, SetupError, load_setup  # numpy
 
 from .app_files import FileActions
 from .app_screens import ScreenActions
+from .history import History
 from .throttle import Throttle
 from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
@@ -131,6 +132,8 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         Binding("m", "measure", "Measure the rig (scales, tilt board)", show=False, id="tuner.measure"),
         Binding("c", "course", "Course view (if installed)", show=False, id="tuner.course"),
         Binding("p", "plan", "Plan a setup (if installed)", show=False, id="tuner.plan"),
+        Binding("ctrl+z,z", "undo", "Undo", id="tuner.undo"),
+        Binding("ctrl+y,Z", "redo", "Redo", show=False, id="tuner.redo"),
         Binding("f1,question_mark", "help", "Help", id="tuner.help"),
         Binding("q", "quit", "Quit", id="tuner.quit"),
     ]
@@ -147,6 +150,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         self.baseline: Optional[Baseline] = (
             Baseline(baseline.setup, baseline.path.name if baseline.path else "baseline") if baseline else None)
         self.analysis: Optional[Analysis] = None
+        self.history = History()
         self._baseline_analysis: Optional[Analysis] = None
         self._chart_pending = False
         self._last_edit = -math.inf
@@ -269,8 +273,13 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
     def _note(self, words: str, severity: str = "info") -> None:
         self.status.note = (words, "error" if severity == "error" else "info")
 
-    def _replace_setup(self, setup: Setup, note: Optional[str] = None) -> None:
-        """A whole new setup from outside the form (opened, measured, planned)."""
+    def _replace_setup(self, setup: Setup, note: Optional[str] = None, what: Optional[str] = None) -> None:
+        """A whole new setup from outside the form (opened, measured, planned); `what` names the
+        undo step (None: a fresh start, e.g. another file, that clears the undo history)."""
+        if what is None:
+            self.history.clear()
+        else:
+            self.history.record(self.setup, setup, what)
         self.setup = setup
         self.form.load(setup, self.units)
         self._recompute()
@@ -283,6 +292,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
     @on(SetupForm.Edited)
     def _edited(self, message: SetupForm.Edited) -> None:
         """The form changed the setup: recompute and redraw."""
+        self.history.record(self.setup, message.setup, message.key.split(".")[-1], key=message.key)
         self.setup = message.setup
         if self.status.note[1] != "error":
             self._note("")  # a note has been read by the next key; give its room back to the chart
@@ -297,6 +307,32 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         self._show_title()
         if message.note:
             self._note(message.note)
+
+    # ----- undo
+
+    def action_undo(self) -> None:
+        """Take back the last change to the setup."""
+        self._travel(self.history.undo(), back=True)
+
+    def action_redo(self) -> None:
+        """Do again the last change taken back."""
+        self._travel(self.history.redo(), back=False)
+
+    def check_action(self, action: str, parameters: tuple) -> Optional[bool]:
+        """Undo and redo belong to the tuner's screen: on a modal screen the keys go to it."""
+        if action in ("undo", "redo"):
+            return isinstance(self.screen, TunerScreen)
+        return True
+
+    def _travel(self, step, back: bool) -> None:
+        if step is None:
+            self._note("Nothing to undo" if back else "Nothing to redo")
+            return
+        self.setup = step.before if back else step.after
+        self.form.load(self.setup, self.units)
+        self._recompute()
+        self._show_title()
+        self._note(f"{'Undone' if back else 'Redone'}: {step.what} (Ctrl+Z/z undo, Ctrl+Y/Z redo)")
 
     # ----- baseline
 

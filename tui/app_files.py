@@ -7,7 +7,7 @@ A mixin of `SlopeTuneApp`; the state it reads and writes (`loaded`, `path`, `set
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Optional
+from typing import Callable, Optional
 
 from slopetune.engine import SetupError, load_setup
 
@@ -22,9 +22,10 @@ class FileActions:
         else:
             self._save_to(self.path, force=False)
 
-    def action_save_as(self) -> None:
-        """Save the setup under another name."""
-        initial = str(self.path) if self.path else str(Path("setups") / "my-setup.toml")
+    def action_save_as(self, then: Optional[Callable[[], None]] = None) -> None:
+        """Save the setup under another name (`then` runs once it is saved)."""
+        # the bundled demo has no folder of the user's: offer the current one
+        initial = str(self.path) if self.path else "my-setup.toml"
 
         def chosen(answer: Optional[str]) -> None:
             if not answer:
@@ -35,14 +36,14 @@ class FileActions:
             same = self.path is not None and _same_file(target, self.path)
             if target.exists() and not same:
                 self._ask(f"{target} exists. Replace it?", "Replace", "Keep it",
-                          lambda: self._save_to(target, force=True))
+                          lambda: self._save_to(target, force=True, then=then))
             else:
-                self._save_to(target, force=False)
+                self._save_to(target, force=False, then=then)
 
         self._push("slopetune.tui.screens.path_prompt", "PathPromptScreen",
                    lambda cls: cls("Save setup as", initial=initial), chosen, "save-as")
 
-    def _save_to(self, target: Path, force: bool) -> None:
+    def _save_to(self, target: Path, force: bool, then: Optional[Callable[[], None]] = None) -> None:
         from .setup_writer import FileChangedOnDisk, SaveError, save_setup
 
         loaded = self.loaded
@@ -50,7 +51,7 @@ class FileActions:
             saved = save_setup(loaded, self.setup, target, force=force)
         except FileChangedOnDisk:
             self._ask(f"{target.name} changed on disk since it was opened. Overwrite it?",
-                      "Overwrite", "Cancel", lambda: self._save_to(target, force=True))
+                      "Overwrite", "Cancel", lambda: self._save_to(target, force=True, then=then))
             return
         except SaveError as exc:
             self._note(f"Not saved: {exc}", "error")
@@ -61,6 +62,8 @@ class FileActions:
         self.saved_setup = self.setup
         self._show_title()
         self._note(f"Saved {saved.path}")
+        if then is not None:
+            then()
 
     def action_open(self) -> None:
         """Open another setup file."""
@@ -97,10 +100,17 @@ class FileActions:
         if self.setup != self.saved_setup:
             where = self.path.name if self.path else "the demo copy"
             self._ask(f"Quit without saving the changes to {where}?", "Quit", "Keep editing",
-                      lambda: self.exit(0))
+                      lambda: self.exit(0), other=("Save and quit", self._save_and_quit))
         else:
             self.exit(0)
 
+
+    def _save_and_quit(self) -> None:
+        """Save (asking for a name if the setup has no file yet), then quit once it is saved."""
+        if self.path is None:
+            self.action_save_as(then=lambda: self.exit(0))
+        else:
+            self._save_to(self.path, force=False, then=lambda: self.exit(0))
 
 
 def _same_file(a: Path, b: Path) -> bool:

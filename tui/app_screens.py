@@ -24,13 +24,25 @@ class ScreenActions:
             raise
         return getattr(mod, name, None)
 
-    def _ask(self, question: str, yes: str, no: str, then: Callable[[], None]) -> None:
-        """Ask a yes/no question; run `then` only on yes."""
+    def _ask(self, question: str, yes: str, no: str, then: Callable[[], None], *,
+             otherwise: Optional[Callable[[], None]] = None,
+             other: Optional[tuple[str, Callable[[], None]]] = None) -> None:
+        """Ask a question; run `then` on yes, `otherwise` on no or Esc, `other[1]` on the third answer."""
         confirm = self._screen_class("slopetune.tui.screens.confirm", "ConfirmScreen")
         if confirm is None:
             self._note(f"{question} (no confirm screen in this build: not done)", "error")
             return
-        self.push_screen(confirm(question, yes_label=yes, no_label=no), lambda ok: then() if ok else None)
+
+        def answered(answer) -> None:
+            if answer == "other" and other is not None:
+                other[1]()
+            elif answer is True:
+                then()
+            elif otherwise is not None:
+                otherwise()
+
+        self.push_screen(confirm(question, yes_label=yes, no_label=no,
+                                 other_label=other[0] if other else None), answered)
 
     def _push(self, module: str, name: str, make: Callable, then: Optional[Callable] = None,
               what: str = "that screen") -> None:
@@ -59,7 +71,8 @@ class ScreenActions:
                 else:
                     setup = setup.with_value(key, value)
             self._replace_setup(setup, "; ".join(refused) if refused else
-                                "Measured: " + ", ".join(f"{k.split('.')[-1]} {v:.3g}" for k, v in values.items()))
+                                "Measured: " + ", ".join(f"{k.split('.')[-1]} {v:.3g}" for k, v in values.items()),
+                                what="measurement applied")
 
         self._push("slopetune.tui.screens.measure", "MeasureScreen", lambda cls: cls(self.setup), apply, "measuring")
 
@@ -75,11 +88,19 @@ class ScreenActions:
             if setup is None:
                 return
             note = "Planned setup applied (not saved yet)"
-            if self.baseline is None:
+
+            def with_baseline() -> None:
                 # the setup before the plan becomes the baseline: the chart overlays it and the
                 # status says how each named angle moved
                 self._set_baseline(before, "before plan")
-                note += "; the setup before it is the baseline (x clears it)"
-            self._replace_setup(setup, note)
+                self._replace_setup(setup, note + "; the setup before it is the baseline (x clears it)",
+                                    what="plan accepted")
+
+            if self.baseline is None or self.baseline.label == "before plan":
+                with_baseline()
+            else:
+                self._ask(f"Replace the baseline ({self.baseline.label}) with the setup before the plan?",
+                          "Replace", "Keep it", with_baseline,
+                          otherwise=lambda: self._replace_setup(setup, note, what="plan accepted"))
 
         self._push("slopetune.tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")

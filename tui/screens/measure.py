@@ -25,6 +25,8 @@ from slopetune.engine.setup_model import cross_field_problems, rule_for
 Plain = partial(Static, markup=False)
 
 KEYS = "Up/Down: field   Enter: next, then Apply   Esc: cancel"
+# Typing pauses this long before the sums are redone (a burst of keys costs one redraw, not one each).
+SETTLE_S = 0.12
 
 # What a field means, shown beside it while its value is fine (a problem replaces it).
 NOTES = {
@@ -104,6 +106,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         self._ascii_only = ascii_only
         self.results: dict[str, Optional[float]] = {key: None for key in DIGITS}
         self.total_g: Optional[float] = None
+        self._settle = None  # the timer that recomputes once typing pauses
 
     # ---- layout -------------------------------------------------------------------------------
 
@@ -276,12 +279,26 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
 
     @on(Input.Changed)
     def _changed(self) -> None:
-        """Any reading changed: redo the three sums (each well under a millisecond)."""
+        """A reading changed: redo the sums once typing pauses, so a fast burst of keys is never
+        held up (and never loses a character) behind a redraw per key."""
+        if self._settle is not None:
+            self._settle.stop()
+        self._settle = self.set_timer(SETTLE_S, self._settled)
+
+    def _settled(self) -> None:
+        self._settle = None
         self._recompute()
+
+    def _flush(self) -> None:
+        """Enter or Apply before the pause: the sums are worked out now."""
+        if self._settle is not None:
+            self._settle.stop()
+            self._settled()
 
     @on(Input.Submitted)
     def _next(self, event: Input.Submitted) -> None:
         """Enter moves on; after a section's last field it lands on that section's Apply button."""
+        self._flush()
         row = event.input.parent
         siblings = list(row.parent.children) if row is not None and row.parent is not None else []
         after = siblings[siblings.index(row) + 1:] if row in siblings else []
@@ -302,6 +319,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     @on(Button.Pressed, ".m-apply")
     def _apply(self, event: Button.Pressed) -> None:
         """Apply one section's value (and the total weight when it was changed)."""
+        self._flush()
         stem = event.button.id.removesuffix("-apply")
         key = next(k for k in DIGITS if k.endswith("." + stem))
         value = self.results.get(key)

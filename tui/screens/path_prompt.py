@@ -14,7 +14,7 @@ from textual.widgets import Input, Static
 # Words from files and setups may hold brackets: never read them as markup.
 Plain = partial(Static, markup=False)
 
-HINT = "Setup files end in .toml, e.g. setups/my-rig.toml"
+HINT = "Type a new path or an arrow key to edit this one; .toml is added"
 KEYS = "Enter: OK   Esc: cancel"
 
 
@@ -32,7 +32,8 @@ class PathPromptScreen(ModalScreen[str | None]):
     def compose(self) -> ComposeResult:
         with Vertical(id="path-box"):
             yield Plain(self.title_text, id="path-title")
-            yield Input(self.initial, id="path-input", compact=True, select_on_focus=False)
+            # the offered path is selected: typing replaces it, an arrow key keeps it to edit
+            yield Input(self.initial, id="path-input", compact=True, select_on_focus=True)
             yield Plain("", id="path-problem")
             yield Plain(HINT, id="path-hint")
             yield Plain(KEYS, id="path-keys")

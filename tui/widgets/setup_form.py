@@ -39,6 +39,7 @@ class RowView(NamedTuple):
     unit: str = ""
     selected: bool = False
     editing: Optional[str] = None  # the typed text while editing
+    fresh: bool = False  # the editing text is the old value: the first character typed replaces it
     inherited: bool = False
     error: Optional[str] = None
     hint: Optional[str] = None  # what the less obvious keys do here, under the selected row
@@ -87,6 +88,7 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         self.rows: list[ff.Row] = ff.build_rows(setup)
         self.cursor = self._first_selectable(1)
         self.typed: Optional[str] = None
+        self.fresh = False  # `typed` is the value as it was: typing replaces it, an arrow keeps it
         self.errors: dict[str, str] = {}
         self._views: list[RowView] = []
         self._heights: list[int] = []
@@ -100,6 +102,7 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
     def load(self, setup: Setup, units: Optional[Units] = None) -> None:
         """Show another setup (opened, measured, planned) or other units; keeps the cursor's key."""
         self.typed = None
+        self.fresh = False
         self.errors.clear()
         if units is not None:
             self.units = units
@@ -165,9 +168,11 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         if not row.selectable and row.kind == "heading":
             return RowView(row.label)
         value, unit, inherited = ff.shown_value(self.setup, row, self.units)
-        return RowView(row.label, value, unit, selected, self.typed if selected else None, inherited,
+        return RowView(row.label, value, unit, selected, self.typed if selected else None, selected and self.fresh,
+                       inherited,
                        self.errors.get(row.key) if row.key else None,
-                       ff.hint(row, inherited, self.typed is not None) if selected else None)
+                       ("typing replaces; Right keeps it to edit" if self.fresh else
+                        ff.hint(row, inherited, self.typed is not None)) if selected else None)
 
     def _second(self, view: RowView) -> Optional[Text]:
         """The line under a row: the reason a value was refused (first), else the hint."""
@@ -271,7 +276,9 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         room = max(width - label_w - 1, 4)
         if v.editing is not None:
             typed = v.editing[-(room - 2):] if room > 3 else v.editing
-            text.append(f"{typed}_", style("setup-form--edit"))
+            # the old value, offered to be replaced, shows reversed (a selection) without colour too
+            text.append(typed, style("setup-form--edit") + (Style(reverse=True) if v.fresh else Style()))
+            text.append("_", style("setup-form--edit"))
         elif row.kind in ("text", "info"):
             shown = v.value if len(v.value) <= room else v.value[: max(room - 3, 1)] + "..."
             text.append(shown, style("setup-form--value"))
@@ -372,7 +379,7 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         row = self.row
         if row.kind in ("number", "text"):
             value, _unit, inherited = ff.shown_value(self.setup, row, self.units)
-            self._start_typing("" if inherited else value)
+            self._start_typing("" if inherited else value, fresh=not inherited)
         else:
             self._apply(ff.activate(self.setup, row))
 
@@ -386,13 +393,15 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
 
     # ----- typing
 
-    def _start_typing(self, text: str) -> None:
+    def _start_typing(self, text: str, fresh: bool = False) -> None:
         self.typed = text
+        self.fresh = fresh
         self.errors.pop(self.row.key, None)
         self._redraw()
 
     def _finish_typing(self, commit: bool) -> None:
         typed, self.typed = self.typed, None
+        self.fresh = False
         if commit and typed is not None:
             self._apply(ff.set_typed(self.setup, self.row, typed, self.units))
         else:
@@ -416,11 +425,17 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             self._finish_typing(commit=True)
             self.action_move(-1 if key == "up" else 1)
         elif key == "backspace":
-            self.typed = self.typed[:-1]
+            self.typed = "" if self.fresh else self.typed[:-1]
+            self.fresh = False
             self._redraw()
         elif key in ("left", "right", "delete", "home", "end"):
-            pass  # no cursor inside the typed text: keep these from stepping the value
+            # no cursor inside the typed text: these keep the old value to edit (never step it)
+            if self.fresh:
+                self.fresh = False
+                self._redraw()
         elif event.is_printable and event.character:
+            if self.fresh:
+                self.typed, self.fresh = "", False
             if len(self.typed) < MAX_TYPED:
                 self.typed += event.character
                 self._redraw()

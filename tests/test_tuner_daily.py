@@ -1,0 +1,154 @@
+"""The tuner as a daily tool (undo, the effective rig, sections, typing, messages), by Pilot at 80x24.
+
+Expected numbers are worked by hand or from the published equations here, never by the code under
+test: ballast combines by first moments of mass (any statics text, e.g. Meriam & Kraige,
+*Engineering Mechanics: Statics*, ch. 5, centre of mass of a composite body).
+"""
+
+from __future__ import annotations
+
+import asyncio
+from pathlib import Path
+
+from slopetune.engine import load_setup
+from slopetune.tui.app import SlopeTuneApp
+from slopetune.tui.widgets.setup_form import SetupForm
+
+ROOT = Path(__file__).resolve().parent.parent
+DEMO = ROOT / "setups" / "marmot-overdrive.toml"
+SIZE = (80, 24)
+
+
+def run(coro):
+    return asyncio.run(coro)
+
+
+def _copy(tmp_path: Path, text: str | None = None) -> Path:
+    target = tmp_path / "rig.toml"
+    target.write_text(DEMO.read_text(encoding="utf-8") if text is None else text, encoding="utf-8")
+    return target
+
+
+def _app(path: Path, **kw) -> SlopeTuneApp:
+    app = SlopeTuneApp(load_setup(path), **kw)
+    app.word_updates.every_s = app.chart_updates.every_s = 0.0
+    return app
+
+
+def test_undo_and_redo_steps_typed_values_and_the_unsaved_marker(tmp_path):
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            form = app.query_one(SetupForm)
+            assert not app.title_bar.unsaved
+            await pilot.press("right")
+            await pilot.pause()
+            await pilot.pause(0.4)  # a separate press, not a held key
+            await pilot.press("4", "5", "enter")
+            await pilot.pause()
+            assert app.setup.terrain.slope_deg == 45.0 and app.title_bar.unsaved
+            await pilot.press("ctrl+z")
+            await pilot.pause()
+            assert app.setup.terrain.slope_deg == 31.0
+            assert form.value_text("terrain.slope_deg") == "31.0"
+            await pilot.press("z")  # the console-safe key
+            await pilot.pause()
+            assert app.setup.terrain.slope_deg == 30.0
+            assert not app.title_bar.unsaved  # back to the file's own values
+            await pilot.press("ctrl+y")
+            await pilot.pause()
+            assert app.setup.terrain.slope_deg == 31.0 and app.title_bar.unsaved
+            await pilot.press("Z")
+            await pilot.pause()
+            assert app.setup.terrain.slope_deg == 45.0
+            await pilot.press("Z")
+            await pilot.pause()
+            assert "Nothing to redo" in app.status.note[0]
+
+    run(go())
+
+
+def test_undo_takes_back_an_added_ballast_item_and_a_held_key_is_one_step(tmp_path):
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            form = app.query_one(SetupForm)
+            items = len(app.setup.rig.ballast)
+            form.focus_key("rig.mass_g")
+            await pilot.press(*["right"] * 6)  # pressed back to back, as a held key repeats
+            await pilot.pause()
+            assert app.setup.rig.mass_g == 2380 + 6 * 5
+            while form.row.kind != "add_ballast":
+                await pilot.press("down")
+            await pilot.press("enter")
+            await pilot.pause()
+            assert len(app.setup.rig.ballast) == items + 1
+            await pilot.press("ctrl+z")
+            await pilot.pause()
+            assert len(app.setup.rig.ballast) == items
+            await pilot.press("ctrl+z")
+            await pilot.pause()
+            assert app.setup.rig.mass_g == 2380
+            assert not app.title_bar.unsaved
+
+    run(go())
+
+
+def test_quit_offers_save_and_quit(tmp_path):
+    path = _copy(tmp_path)
+
+    async def go():
+        app = _app(path)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            await pilot.press("right", "q")
+            await pilot.pause()
+            assert type(app.screen).__name__ == "ConfirmScreen"
+            await pilot.press("s")
+            await pilot.pause()
+        return app
+
+    app = run(go())
+    assert app.return_code == 0
+    assert load_setup(path).setup.terrain.slope_deg == 31.0  # saved before quitting
+
+
+def test_save_as_offers_the_current_folder_for_the_demo_and_typing_replaces_it(tmp_path, monkeypatch):
+    from slopetune.tui.app_main import demo_setup
+
+    monkeypatch.chdir(tmp_path)
+
+    async def go():
+        app = SlopeTuneApp(demo_setup())
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            await pilot.press("a")
+            await pilot.pause()
+            field = app.screen.query_one("#path-input")
+            assert field.value == "my-setup.toml"
+            await pilot.press(*"rig2", "enter")
+            await pilot.pause()
+            assert app.path is not None and app.path.name == "rig2.toml"
+
+    run(go())
+    assert (tmp_path / "rig2.toml").is_file()
+
+
+def test_typing_into_a_text_field_replaces_its_value(tmp_path):
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            form = app.query_one(SetupForm)
+            form.focus_key("rig.ballast.0.name")
+            await pilot.press("enter", *"lead", "enter")
+            await pilot.pause()
+            assert app.setup.rig.ballast[0].name == "lead"
+            # an arrow key first keeps the value to edit it
+            await pilot.press("enter", "right", *" nose", "enter")
+            await pilot.pause()
+            assert app.setup.rig.ballast[0].name == "lead nose"
+
+    run(go())
