@@ -10,9 +10,11 @@ key, the value and what is allowed.
 
 from __future__ import annotations
 
+import hashlib
 import math
 import os
 import re
+import stat as stat_mod
 import sys
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -27,9 +29,14 @@ from .setup_model import (
     FIELDS, LOAD_MODES, SCHEMA_VERSION, BallastItem, Course, Driveline, Grip, Rig, Setup, Terrain,
     cross_field_problems, rule_for,
 )
+from .toml_scan import ScanProblem, line_index, scan
 
 MAX_FILE_BYTES = 1 << 20
 MAX_STAGES = 10  # more would overflow the reduction (1000**103 > 1e308); real drivelines have 1 to 4
+# Unknown keys warned about one by one; past this one summary line (a file of thousands of unknown
+# keys would otherwise bury the screen).
+MAX_WARNINGS = 20
+BOM = "\ufeff"
 SECTIONS = ("rig", "driveline", "grip", "terrain", "course")
 TOP_KEYS = ("schema", "name", "notes") + SECTIONS
 SECTION_KEYS = {
@@ -75,49 +82,20 @@ class LoadedSetup:
     data: dict = field(default_factory=dict)
     mtime_ns: Optional[int] = None
     warnings: list = field(default_factory=list)
-
-
-_HEADER = re.compile(r"^\s*(\[\[?)\s*([A-Za-z0-9_.\-\" ]+?)\s*\]\]?\s*(#.*)?$")
+    # SHA-256 of the bytes read: a save compares it with the file on disk, so an outside edit that
+    # keeps the modification time (cp -p, rsync -t) is still noticed.
+    sha256: Optional[str] = None
+    bom: bool = False  # the file began with a UTF-8 byte-order mark (kept on save)
 
 
 def find_line(text: str, key: str) -> Optional[int]:
     """1-based line of a dotted key ("rig.mass_g", "rig.ballast.1.x_mm", "schema") in TOML text.
 
-    A plain scan of table headers and ``key =`` lines; good enough for files a person writes.
-    Returns the table header's line when the key itself is absent, None when neither is found.
-    A key that is itself a table ("motor", "rig.ballast") gives its (first) header's line.
+    Returns the line of the nearest enclosing key or table header when the key itself is absent,
+    None when neither is found; a key that is itself a table gives its (first) header's line.
+    One linear pass over the text (`toml_scan`); callers with many keys keep a `line_index`.
     """
-    for no, line in enumerate(text.splitlines(), 1):
-        m = _HEADER.match(line)
-        if m and m.group(2).replace('"', "").replace(" ", "") == key:
-            return no
-    parts = key.split(".")
-    if len(parts) >= 3 and parts[2].isdigit():
-        table, want_index, leaf = ".".join(parts[:2]), int(parts[2]), (parts[3] if len(parts) > 3 else None)
-    elif len(parts) >= 2:
-        table, want_index, leaf = parts[0], None, parts[1]
-    else:
-        table, want_index, leaf = "", None, parts[0]
-    current, index, header_line = "", -1, (1 if table == "" else None)
-    seen: dict[str, int] = {}
-    for no, line in enumerate(text.splitlines(), 1):
-        m = _HEADER.match(line)
-        if m:
-            name = m.group(2).replace('"', "").replace(" ", "")
-            if m.group(1) == "[[":
-                seen[name] = seen.get(name, -1) + 1
-                index = seen[name]
-            else:
-                index = -1
-            current = name
-            if current == table and (want_index is None or index == want_index):
-                header_line = no
-            continue
-        if current != table or (want_index is not None and index != want_index):
-            continue
-        if leaf is not None and re.match(rf"^\s*\"?{re.escape(leaf)}\"?\s*=", line):
-            return no
-    return header_line
+    return line_index(text).find(key)
 
 
 def _show(value: Any) -> str:
@@ -132,11 +110,23 @@ def _show(value: Any) -> str:
 class _Reader:
     """Walks the parsed table; every error goes through `fail` so it carries file and line."""
 
-    def __init__(self, path: str, text: str, data: dict):
+    def __init__(self, path: str, text: str, data: dict, index=None):
         self.path, self.text, self.data, self.warnings = path, text, data, []
+        self.index = index if index is not None else line_index(text)
+        self.unwarned = 0
 
     def fail(self, key: str, message: str):
-        raise SetupError(message, self.path, find_line(self.text, key), key)
+        raise SetupError(message, self.path, self.index.find(key), key)
+
+    def unknown(self, key: str, shown: str) -> None:
+        if len(self.warnings) < MAX_WARNINGS:
+            self.warnings.append(f"{self.path}:{self.index.find(key) or '?'}: unknown key {shown} kept but not used")
+        else:
+            self.unwarned += 1
+
+    def finish_warnings(self) -> list:
+        extra = [f"{self.path}: {self.unwarned} more unknown keys kept but not used"] if self.unwarned else []
+        return self.warnings + extra
 
     def number(self, table: dict, key: str, dotted: str):
         rule = rule_for(dotted)
@@ -167,8 +157,7 @@ class _Reader:
             self.fail(key, f"{key} = {_show(value)}: must be a section [{key}]")
         for k in value:
             if k not in SECTION_KEYS[key]:
-                self.warnings.append(f"{self.path}:{find_line(self.text, f'{key}.{k}') or '?'}: "
-                                     f"unknown key {key}.{k} kept but not used")
+                self.unknown(f"{key}.{k}", f"{key}.{k}")
         return value
 
     def stages(self, table: dict, key: str):
@@ -195,7 +184,7 @@ class _Reader:
                 continue
             if isinstance(v, dict):
                 self.fail(k, f"[{k}]: unknown section; allowed sections: {', '.join(SECTIONS)}")
-            self.warnings.append(f"{self.path}:{find_line(self.text, k) or '?'}: unknown key {k} kept but not used")
+            self.unknown(k, k)
         if "schema" not in d:
             raise SetupError(f"schema: missing; required, schema = {SCHEMA_VERSION}", self.path, 1, "schema")
         schema = d["schema"]
@@ -218,8 +207,7 @@ class _Reader:
                 self.fail(base, f"rig.ballast[{i}] = {_show(item)}: must be a [[rig.ballast]] item")
             for k in item:
                 if k not in BALLAST_KEYS:
-                    self.warnings.append(f"{self.path}:{find_line(self.text, f'{base}.{k}') or '?'}: "
-                                         f"unknown key rig.ballast[{i}].{k} kept but not used")
+                    self.unknown(f"{base}.{k}", f"rig.ballast[{i}].{k}")
             items.append(BallastItem(
                 name=self.text_value(item, "name", f"{base}.name", f"item {i + 1}"),
                 mass_g=self._ballast_number(item, "mass_g", base, i),
@@ -240,6 +228,9 @@ class _Reader:
                       f"driveline.{missing}: missing; gear stages need both front_stages and rear_stages")
         if has_f:
             driveline = Driveline(None, self.stages(dl, "front_stages"), self.stages(dl, "rear_stages"))
+            problem = stage_ratio_problem(driveline.front_stages, driveline.rear_stages)
+            if problem:
+                self.fail("driveline.front_stages", f"driveline.front_stages, rear_stages: {problem}")
         else:
             driveline = Driveline(self.number(dl, "overdrive_pct", "driveline.overdrive_pct"))
 
@@ -294,10 +285,51 @@ class _Reader:
         return Course(name, tuple(out), float(clearance))
 
 
+def stage_ratio_problem(front_stages, rear_stages) -> Optional[str]:
+    """Why two legal stage lists cannot go together, or None.
+
+    Each tooth count is legal on its own, but ten stages of 1:1000 against ten of 1000:1 make a
+    front/rear speed ratio of 1e-60: the overdrive is then -100 % and the model divides by zero.
+    The stages must give an overdrive inside the range `overdrive_pct` itself allows.
+    """
+    from .overdrive import gear_overdrive_pct
+
+    rule = FIELDS["driveline.overdrive_pct"]
+    with _quiet_floats():
+        pct = gear_overdrive_pct(front_stages, rear_stages)
+    if rule.problem(pct) is None:
+        return None
+    shown = f"{pct:+.4g} %" if math.isfinite(pct) else "beyond any number"
+    return f"the stages give an overdrive of {shown}; allowed {rule.allowed()} [%] (check the tooth counts)"
+
+
+class _quiet_floats:
+    """Float overflow in a check is an answer (out of range), not a warning for stderr."""
+
+    def __enter__(self):
+        import warnings
+
+        self._ctx = warnings.catch_warnings()
+        self._ctx.__enter__()
+        warnings.simplefilter("ignore", RuntimeWarning)
+
+    def __exit__(self, *exc):
+        return self._ctx.__exit__(*exc)
+
+
 def parse_setup(text: str, path: str = "<setup>") -> tuple[Setup, dict, list]:
-    """Check TOML text; return (setup, parsed table, warnings) or raise `SetupError`."""
+    """Check TOML text; return (setup, parsed table, warnings) or raise `SetupError`.
+
+    A leading byte-order mark is allowed (some editors write one) and ignored.
+    """
+    if text.startswith(BOM):
+        text = text[1:]
     if not text.strip():
         raise SetupError("file is empty; a setup needs at least schema, [rig], [grip] and [terrain]", path)
+    try:  # bound the parser's cost before it runs (deep nesting, huge dotted keys)
+        index = scan(text)
+    except ScanProblem as exc:
+        raise SetupError(f"TOML too complex to be a setup: {exc.reason}", path, exc.line) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -308,39 +340,85 @@ def parse_setup(text: str, path: str = "<setup>") -> tuple[Setup, dict, list]:
         if m:
             reason += f" (column {m.group(2)})"
         raise SetupError(f"TOML syntax: {reason}", path, line) from None
-    reader = _Reader(path, text, data)
+    except RecursionError:  # the scan bounds nesting; this is a last guard, not a path
+        raise SetupError("TOML too complex to be a setup: nested too deep", path) from None
+    reader = _Reader(path, text, data, index)
     setup = reader.read()
-    return setup, data, [one_line(w) for w in reader.warnings]
+    return setup, data, [one_line(w) for w in reader.finish_warnings()]
+
+
+def _read_raw(path) -> tuple[bytes, os.stat_result]:
+    """The bytes of a regular file, at most `MAX_FILE_BYTES` + 1 of them, and its status.
+
+    Opened without blocking and checked on the open descriptor, so a FIFO, a terminal or a device
+    (/dev/zero, /dev/urandom) is refused before anything is read, and a file that grows while it
+    is read still costs at most the cap.
+    """
+    p = Path(path)
+    name = str(path)
+    try:
+        fd = os.open(p, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0))
+    except FileNotFoundError:
+        raise SetupError("no such file" + (" (a link to nowhere)" if p.is_symlink() else ""), name) from None
+    except IsADirectoryError:
+        raise SetupError("is a folder, not a setup file", name) from None
+    except OSError as exc:
+        raise SetupError(f"cannot read: {exc.strerror}", name) from None
+    try:
+        st = os.fstat(fd)
+        if stat_mod.S_ISDIR(st.st_mode):
+            raise SetupError("is a folder, not a setup file", name)
+        if not stat_mod.S_ISREG(st.st_mode):
+            kind = ("a named pipe (FIFO)" if stat_mod.S_ISFIFO(st.st_mode)
+                    else "a device" if stat_mod.S_ISCHR(st.st_mode) or stat_mod.S_ISBLK(st.st_mode)
+                    else "a socket" if stat_mod.S_ISSOCK(st.st_mode) else "not a regular file")
+            raise SetupError(f"is {kind}, not a setup file; give a regular file", name)
+        if st.st_size > MAX_FILE_BYTES:
+            raise SetupError(f"file is {st.st_size / 1048576:.1f} MiB; a setup file must be under 1 MiB", name)
+        chunks, left = [], MAX_FILE_BYTES + 1
+        while left > 0:
+            chunk = os.read(fd, min(left, 1 << 16))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            left -= len(chunk)
+    except BlockingIOError:
+        raise SetupError("cannot read: the file is not ready (locked or special)", name) from None
+    except OSError as exc:
+        raise SetupError(f"cannot read: {exc.strerror}", name) from None
+    finally:
+        os.close(fd)
+    raw = b"".join(chunks)
+    if len(raw) > MAX_FILE_BYTES:
+        raise SetupError("file is over 1 MiB; a setup file must be under 1 MiB", name)
+    return raw, st
+
+
+def _decode(raw: bytes, name: str) -> str:
+    if b"\x00" in raw:
+        raise SetupError("binary file (contains NUL bytes), not a TOML setup", name)
+    if raw.startswith(b"\xfe\xff") or raw.startswith(b"\xff\xfe"):
+        raise SetupError("UTF-16 text (byte-order mark FE FF); save the setup as UTF-8", name)
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = raw[: exc.start].count(b"\n") + 1
+        raise SetupError(f"not UTF-8 text (byte {exc.start}); a setup file is UTF-8 TOML", name, line) from None
 
 
 def read_setup_text(path) -> tuple[str, int]:
     """The file's text and modification time, refusing what cannot be a setup file."""
-    p = Path(path)
-    name = str(path)
+    raw, st = _read_raw(path)
+    return _decode(raw, str(path)), st.st_mtime_ns
+
+
+def file_sha256(path) -> Optional[str]:
+    """SHA-256 of a setup file's bytes as `load_setup` reads them; None when it cannot be read."""
     try:
-        st = os.stat(p)
-    except FileNotFoundError:
-        raise SetupError("no such file" + (" (a link to nowhere)" if p.is_symlink() else ""), name) from None
-    except OSError as exc:
-        raise SetupError(f"cannot read: {exc.strerror}", name) from None
-    if p.is_dir():
-        raise SetupError("is a folder, not a setup file", name)
-    if st.st_size > MAX_FILE_BYTES:
-        raise SetupError(f"file is {st.st_size / 1048576:.1f} MiB; a setup file must be under 1 MiB", name)
-    try:
-        raw = p.read_bytes()
-    except OSError as exc:
-        raise SetupError(f"cannot read: {exc.strerror}", name) from None
-    if len(raw) > MAX_FILE_BYTES:
-        raise SetupError("file is over 1 MiB; a setup file must be under 1 MiB", name)
-    if b"\x00" in raw:
-        raise SetupError("binary file (contains NUL bytes), not a TOML setup", name)
-    try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
-        raise SetupError(f"not UTF-8 text (byte {exc.start}); a setup file is UTF-8 TOML", name, line) from None
-    return text, st.st_mtime_ns
+        raw, _ = _read_raw(path)
+    except SetupError:
+        return None
+    return hashlib.sha256(raw).hexdigest()
 
 
 def load_setup(path) -> LoadedSetup:
@@ -351,9 +429,14 @@ def load_setup(path) -> LoadedSetup:
     SetupError
         For any file or value that cannot be used; its message is one line.
     """
-    text, mtime = read_setup_text(path)
+    raw, st = _read_raw(path)
+    text = _decode(raw, str(path))
+    bom = text.startswith(BOM)
+    if bom:
+        text = text[1:]
     setup, data, warnings = parse_setup(text, str(path))
-    return LoadedSetup(Path(path), setup, text, data, mtime, warnings)
+    return LoadedSetup(Path(path), setup, text, data, st.st_mtime_ns, warnings,
+                       hashlib.sha256(raw).hexdigest(), bom)
 
 
 def _is_text_key(key: str) -> bool:
@@ -379,7 +462,16 @@ def check_value(setup: Setup, key: str, value) -> Optional[str]:
                 or int(parts[2]) >= len(stages)):
             return "not a tooth count of this setup's gear stages"
         problem = FIELDS["driveline.teeth"].problem(value)
-        return problem and f"{problem} [teeth]"
+        if problem:
+            return f"{problem} [teeth]"
+        changed = [list(s) for s in stages]
+        changed[int(parts[2])][int(parts[3])] = value
+        other = "rear_stages" if parts[1] == "front_stages" else "front_stages"
+        pair = {parts[1]: changed, other: getattr(setup.driveline, other)}
+        if pair[other] is not None:
+            ratio = stage_ratio_problem(pair["front_stages"], pair["rear_stages"])
+            if ratio:
+                return ratio
     else:
         try:
             rule = rule_for(key)

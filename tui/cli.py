@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 import importlib
 import sys
+import warnings
 
 from slopetune.engine import SetupError
 
@@ -53,7 +54,16 @@ def _tuner_args(argv):
     return parser.parse_args(argv)
 
 
+def quiet_float_warnings() -> None:
+    """Numpy's floating-point RuntimeWarnings (overflow, invalid value, divide by zero) are not for
+    the user: results are checked finite where they are shown, and a warning line on stderr would
+    break the one-line promise (and the tuner's screen)."""
+    warnings.filterwarnings("ignore", category=RuntimeWarning,
+                            message=r"(overflow|invalid value|divide by zero|underflow) encountered")
+
+
 def main(argv=None) -> int:
+    quiet_float_warnings()
     argv = sys.argv[1:] if argv is None else list(argv)
     tuner = _tuner_args(argv)
     if tuner is not None:

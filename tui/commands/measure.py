@@ -6,6 +6,7 @@ import argparse
 import math
 
 from slopetune.engine import SetupError, load_setup
+from slopetune.engine.setup_model import FIELDS, rule_for
 from slopetune.engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
 
 HELP = """\
@@ -27,9 +28,25 @@ def _finite(name: str, value: float) -> float:
     return value
 
 
-def _positive(name: str, value: float) -> float:
+def _positive(name: str, value: float, rule: str = "rig.mass_g") -> float:
+    """A reading > 0 and inside the range the setup file allows for that kind of value, so an
+    absurd reading (1e300 g, 5e-324 mm) is refused instead of printed as `inf %`."""
     if not _finite(name, value) > 0:
         raise SetupError(f"{name} {value:g}: must be > 0", "command line")
+    r = FIELDS[rule]
+    if value < 1e-6 or (r.hi is not None and value >= r.hi):
+        raise SetupError(f"{name} {value:g}: outside any sane reading; must be above 1e-06 and below "
+                         f"{r.hi:g} [{r.unit}]", "command line")
+    return value
+
+
+def _result(key: str, value: float, label: str) -> float:
+    """The measured value, refused when the setup file could not hold it."""
+    problem = rule_for(key).problem(value)
+    if problem:
+        shown = f"{value:.6g}" if math.isfinite(value) else "no finite value"
+        raise SetupError(f"{label}: the readings give {key} = {shown}, which {problem}; check the readings",
+                         "command line")
     return value
 
 
@@ -85,30 +102,34 @@ def run(args) -> int:
         front = _positive("--front", args.front)
         if front >= total:
             raise SetupError(f"--front {front:g}: must be below the total weight {total:g} g", "command line")
-        value = float(front_bias_pct(front, total))
+        value = _result("rig.front_bias_pct", float(front_bias_pct(front, total)), "--front")
         key, text = "rig.front_bias_pct", f"front bias {value:.2f} % ({front:g} g of {total:g} g on the front axle)"
     elif args.kind == "cg-height":
         total = _positive("--total", _from_file(args, args.total, "rig.mass_g", "--total"))
-        wb = _positive("--wheelbase", _from_file(args, args.wheelbase, "rig.wheelbase_mm", "--wheelbase"))
+        wb = _positive("--wheelbase", _from_file(args, args.wheelbase, "rig.wheelbase_mm", "--wheelbase"),
+                       "rig.wheelbase_mm")
         if args.axle_height is None:
             axle = _from_file(args, None, "rig.tire_dia_front_mm", "--axle-height") / 2.0
         else:
-            axle = _positive("--axle-height", args.axle_height)
+            axle = _positive("--axle-height", args.axle_height, "rig.tire_dia_front_mm")
         level = _positive("--level-front", args.level_front)
-        lifts = [(_positive("--lift height", h), _positive("--lift reading", g)) for h, g in args.lift]
+        lifts = [(_positive("--lift height", h, "rig.wheelbase_mm"), _positive("--lift reading", g))
+                 for h, g in args.lift]
         try:
             value = cg_height_from_lift_mm(total, wb, axle, level, [h for h, _ in lifts], [g for _, g in lifts])
         except ValueError as exc:
             raise SetupError(f"--lift: {exc}", "command line") from None
         if not (math.isfinite(value) and value > 0):
-            raise SetupError(f"--lift: readings give a CG height of {value:.1f} mm; check the readings", "command line")
+            shown = f"{value:.1f} mm" if math.isfinite(value) else "no finite value"
+            raise SetupError(f"--lift: readings give a CG height of {shown}; check the readings", "command line")
+        value = _result("rig.cg_height_mm", value, "--lift")
         key = "rig.cg_height_mm"
         text = f"CG height {value:.1f} mm (ISO 10392 axle lift, {len(lifts)} lift{'s' if len(lifts) > 1 else ''})"
     else:
         angle = _finite("--angle", args.angle)
         if not 0 < angle < 80:
             raise SetupError(f"--angle {angle:g}: must be above 0 and below 80 degrees", "command line")
-        value = float(mu_from_slide_angle(angle))
+        value = _result("grip.mu_static", float(mu_from_slide_angle(angle)), "--angle")
         key = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}[args.axle]
         text = f"static mu {value:.3f} (tan {angle:g} deg)"
     print(text)

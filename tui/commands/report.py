@@ -53,9 +53,10 @@ def slope_range(start: float, stop: float, step: float) -> np.ndarray:
         raise SetupError(f"--step {step:g}: must be > 0 degrees", "command line")
     if stop < start:
         raise SetupError(f"--from {start:g} --to {stop:g}: --to must not be below --from", "command line")
-    n = int(math.floor((stop - start) / step + 1e-9)) + 1
-    if n > MAX_ROWS:
-        raise SetupError(f"--step {step:g}: gives {n} rows; at most {MAX_ROWS}", "command line")
+    span = (stop - start) / step  # inf for a subnormal step: compared as a float, never made an int
+    if not span < MAX_ROWS:
+        raise SetupError(f"--step {step:g}: gives more than {MAX_ROWS} rows; use a larger step", "command line")
+    n = int(math.floor(span + 1e-9)) + 1
     slopes = start + step * np.arange(n)
     if stop - slopes[-1] > 1e-9 * max(1.0, abs(stop)):
         slopes = np.append(slopes, stop)
