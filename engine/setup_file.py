@@ -51,13 +51,7 @@ SECTION_KEYS = {
 BALLAST_KEYS = ("name", "mass_g", "x_mm", "z_mm")
 
 
-_CONTROL = re.compile("[\x00-\x08\x0a-\x1f\x7f\x85\u2028\u2029]")
-
-
-def one_line(text: str) -> str:
-    """`text` with line breaks and terminal control characters spelled out (a key or file name
-    in a hostile file can hold them; printed raw they would break the line or the terminal)."""
-    return _CONTROL.sub(lambda m: repr(m.group())[1:-1], text)
+from .safe_text import one_line  # noqa: E402 - the one escaping rule for every message
 
 
 class SetupError(ValueError):
@@ -395,10 +389,10 @@ def _read_raw(path) -> tuple[bytes, os.stat_result]:
 
 
 def _decode(raw: bytes, name: str) -> str:
-    if b"\x00" in raw:
-        raise SetupError("binary file (contains NUL bytes), not a TOML setup", name)
     if raw.startswith(b"\xfe\xff") or raw.startswith(b"\xff\xfe"):
         raise SetupError("UTF-16 text (byte-order mark FE FF); save the setup as UTF-8", name)
+    if b"\x00" in raw:
+        raise SetupError("binary file (contains NUL bytes), not a TOML setup", name)
     try:
         return raw.decode("utf-8")
     except UnicodeDecodeError as exc:

@@ -30,6 +30,7 @@ from textual.screen import Screen
 from textual.widgets import Footer, Static
 
 from slopetune.engine import LoadedSetup, Setup, SetupError, load_setup  # numpy-free: engine loads names lazily
+from slopetune.engine.safe_text import one_line
 
 from .app_files import FileActions
 from .app_screens import ScreenActions
@@ -271,7 +272,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         self.title_bar.show(*self._title_words())
 
     def _note(self, words: str, severity: str = "info") -> None:
-        self.status.note = (words, "error" if severity == "error" else "info")
+        self.status.note = (one_line(words), "error" if severity == "error" else "info")  # may quote a file
 
     def _replace_setup(self, setup: Setup, note: Optional[str] = None, what: Optional[str] = None) -> None:
         """A whole new setup from outside the form (opened, measured, planned); `what` names the

@@ -44,18 +44,19 @@ class FileActions:
                    lambda cls: cls("Save setup as", initial=initial), chosen, "save-as")
 
     def _save_to(self, target: Path, force: bool, then: Optional[Callable[[], None]] = None) -> None:
-        from .setup_writer import FileChangedOnDisk, SaveError, save_setup
+        from slopetune.engine.safe_text import one_line
+
+        from .setup_writer import SaveError, SaveNeedsConfirmation, save_setup
 
         loaded = self.loaded
         try:
             saved = save_setup(loaded, self.setup, target, force=force)
-        except FileChangedOnDisk:
-            self._ask(f"{target.name} changed on disk since it was opened. Overwrite it?",
-                      "Overwrite", "Cancel", lambda: self._save_to(target, force=True, then=then))
+        except SaveNeedsConfirmation as exc:  # changed on disk, or a link to nowhere
+            self._ask(exc.question, exc.confirm, "Cancel", lambda: self._save_to(target, force=True, then=then))
             return
         except SaveError as exc:
             self._note(f"Not saved: {exc}", "error")
-            self.notify(str(exc), title="Not saved", severity="error")
+            self.notify(one_line(str(exc)), title="Not saved", severity="error")
             return
         self.loaded = saved
         self.path = saved.path

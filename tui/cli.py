@@ -7,11 +7,14 @@ no traceback).
 from __future__ import annotations
 
 import argparse
+import contextlib
 import importlib
+import io
 import sys
 import warnings
 
 from slopetune.engine import SetupError
+from slopetune.engine.safe_text import safe_lines
 
 from .commands import COMMANDS
 
@@ -62,6 +65,35 @@ def quiet_float_warnings() -> None:
                             message=r"(overflow|invalid value|divide by zero|underflow) encountered")
 
 
+class _SafeOut(io.TextIOBase):
+    """stdout for the sub-commands: names and notes from a file may hold terminal control or bidi
+    characters; every write is passed through the shared escaping rule (line breaks kept). JSON is
+    unaffected: `json.dump` already writes those characters as \\u escapes."""
+
+    def __init__(self, raw):
+        self.raw = raw
+
+    def write(self, text: str) -> int:
+        self.raw.write(safe_lines(text))
+        return len(text)
+
+    def flush(self) -> None:
+        self.raw.flush()
+
+    def isatty(self) -> bool:
+        return self.raw.isatty()
+
+
+@contextlib.contextmanager
+def safe_stdout():
+    raw = sys.stdout
+    sys.stdout = _SafeOut(raw)
+    try:
+        yield
+    finally:
+        sys.stdout = raw
+
+
 def main(argv=None) -> int:
     quiet_float_warnings()
     argv = sys.argv[1:] if argv is None else list(argv)
@@ -80,7 +112,8 @@ def main(argv=None) -> int:
         build_parser().print_help()
         return 2
     try:
-        return int(args.func(args) or 0)
+        with safe_stdout():
+            return int(args.func(args) or 0)
     except SetupError as exc:
         print(f"slopetune: {exc}", file=sys.stderr)
         return 2

@@ -28,6 +28,7 @@ from textual.widget import Widget
 from textual.widgets import Static
 
 from slopetune.engine import Setup, SetupError
+from slopetune.engine.safe_text import one_line
 from slopetune.engine.course_walk import CourseWalk, state_words, walk_course
 
 from .widgets.load_chart import ASCII_FOLD, nice_step, restyle
@@ -340,7 +341,7 @@ class CourseScreen(Screen[None]):
 
     def compose(self) -> ComposeResult:
         course = self.setup.course
-        title = f"{self.setup.name} - course: {course.name if course else '(none)'}"
+        title = one_line(f"{self.setup.name} - course: {course.name if course else '(none)'}")
         yield Static(title, id="course-title", markup=False)
         yield SideView(id="course-view")
         yield CourseStatus(id="course-status")

@@ -2,22 +2,35 @@
 
 Values are merged key by key into the user's own document through tomlkit, so comments, key
 order, formatting of untouched values and keys slopetune does not know all survive. A value is
-only rewritten when it changed. Files are replaced atomically: a temporary file in the same
-folder, fsync, rename, so a power cut leaves either the old or the new complete file.
+only rewritten when it changed, in the layout the file already uses (`[rig]` tables, dotted keys
+at the top, an inline `rig = {...}`, ballast as `[[rig.ballast]]` blocks or as an inline array).
+Before anything is written the new text is read back and must give exactly the setup being saved;
+when it does not, the save is refused and the file is left alone.
+
+Files are replaced atomically: a temporary file in the same folder, fsync, rename, so a power cut
+leaves either the old or the new complete file. The new file keeps the old one's mode and owner. A
+read-only file, a file owned by someone else (when slopetune cannot give it back) and a file with
+several hard links are refused with how to save elsewhere, since replacing them would silently
+change what the user set up. A change on disk since loading is found by a SHA-256 of the bytes.
 """
 
 from __future__ import annotations
 
+import dataclasses
+import hashlib
+import math
 import os
 import secrets
+import stat as stat_mod
 
 from pathlib import Path
 from typing import Optional
 
 import tomlkit
-from tomlkit.items import AoT, Table
+from tomlkit.items import AoT, Array, InlineTable, Table
 
 from slopetune.engine import LoadedSetup, Setup, SetupError, parse_setup
+from slopetune.engine.setup_file import BOM, file_sha256
 from slopetune.engine.setup_model import FIELDS
 
 TMP_SUFFIX = ".slopetune-tmp"
@@ -27,8 +40,27 @@ class SaveError(OSError):
     """A save that did not happen; `str()` is one line. The file on disk is untouched."""
 
 
-class FileChangedOnDisk(SaveError):
+class SaveNeedsConfirmation(SaveError):
+    """A save that needs a yes first; `question` asks it, saving again with force=True goes ahead."""
+
+    confirm = "Overwrite"
+
+    def __init__(self, message: str, question: str):
+        super().__init__(message)
+        self.question = question
+
+
+class FileChangedOnDisk(SaveNeedsConfirmation):
     """The file changed on disk since it was loaded; saving again with force=True overwrites."""
+
+
+class LinkToNowhere(SaveNeedsConfirmation):
+    """The target is a symbolic link whose file does not exist: saving creates the file it names."""
+
+    confirm = "Create it"
+
+
+ELSEWHERE = "save under another name (tuner: a) or copy the file and write to the copy"
 
 
 def _tidy(value):
@@ -59,8 +91,13 @@ def _put(table, key: str, value) -> None:
     table[key] = value
 
 
+def _is_table(value) -> bool:
+    """A table in any layout: `[x]`, inline `x = {...}`, dotted `x.k = v` (tomlkit's proxy)."""
+    return hasattr(value, "keys") and hasattr(value, "__setitem__") and not isinstance(value, (AoT, Array, list))
+
+
 def _section(doc, name: str):
-    if name not in doc or not isinstance(doc[name], (Table, dict)):
+    if name not in doc or not _is_table(doc[name]):
         doc[name] = tomlkit.table()
     return doc[name]
 
@@ -78,15 +115,42 @@ def _stages(stages):
     return arr
 
 
+BALLAST_KEYS = ("name", "mass_g", "x_mm", "z_mm")
+
+
 def _merge_ballast(rig_table, items) -> None:
+    """Ballast items merged in the layout the file uses: `[[rig.ballast]]` blocks or an inline array
+    (each kept with its comments); a file without ballast gets blocks under a `[rig]` table and an
+    inline array where `rig` is itself inline or dotted (a block there would not be valid TOML)."""
     existing = rig_table.get("ballast")
     if not items:
         if existing is not None:
             del rig_table["ballast"]
         return
-    if not isinstance(existing, AoT):
-        if existing is not None:
-            del rig_table["ballast"]
+    if isinstance(existing, Array):
+        while len(existing) > len(items):
+            del existing[len(existing) - 1]
+        for i, item in enumerate(items):
+            if i >= len(existing):
+                fresh = tomlkit.inline_table()
+                fresh.update({key: _tidy(getattr(item, key)) for key in BALLAST_KEYS})
+                existing.append(fresh)
+            else:
+                for key in BALLAST_KEYS:
+                    _put(existing[i], key, getattr(item, key))
+        return
+    if existing is not None and not isinstance(existing, AoT):
+        del rig_table["ballast"]
+        existing = None
+    if existing is None:
+        if not isinstance(rig_table, Table) or rig_table.is_super_table():
+            arr = tomlkit.array()
+            for item in items:
+                fresh = tomlkit.inline_table()
+                fresh.update({key: _tidy(getattr(item, key)) for key in BALLAST_KEYS})
+                arr.append(fresh)
+            rig_table["ballast"] = arr
+            return
         existing = tomlkit.aot()
         rig_table.append("ballast", existing)
     while len(existing) > len(items):
@@ -96,7 +160,7 @@ def _merge_ballast(rig_table, items) -> None:
         if fresh:
             existing.append(tomlkit.table())
         t = existing[i]
-        for key in ("name", "mass_g", "x_mm", "z_mm"):
+        for key in BALLAST_KEYS:
             _put(t, key, getattr(item, key))
         if fresh:
             t.add(tomlkit.nl())
@@ -151,7 +215,32 @@ def render_setup(loaded: Optional[LoadedSetup], setup: Setup) -> str:
         c["points_mm"] = [[_tidy(x), _tidy(z)] for x, z in setup.course.points_mm]
         c["belly_clearance_mm"] = _tidy(setup.course.belly_clearance_mm)
         doc["course"] = c
-    return tomlkit.dumps(doc)
+    return (BOM if loaded is not None and loaded.bom else "") + tomlkit.dumps(doc)
+
+
+def setup_difference(a, b, where: str = "") -> Optional[str]:
+    """The first dotted key where two setups differ (numbers to 1e-9 relative), or None.
+
+    The writer spells numbers with 10 significant digits, so a read-back equal to that is equal.
+    """
+    if dataclasses.is_dataclass(a) and type(a) is type(b):
+        for f in dataclasses.fields(a):
+            found = setup_difference(getattr(a, f.name), getattr(b, f.name), f"{where}.{f.name}".lstrip("."))
+            if found:
+                return found
+        return None
+    if isinstance(a, (tuple, list)) and isinstance(b, (tuple, list)):
+        if len(a) != len(b):
+            return where
+        for i, (x, y) in enumerate(zip(a, b)):
+            found = setup_difference(x, y, f"{where}.{i}")
+            if found:
+                return found
+        return None
+    if (isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(a, bool)
+            and not isinstance(b, bool)):
+        return None if math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-300) else where
+    return None if a == b else where
 
 
 def _remove_stale_temps(folder: Path, name: str) -> None:
@@ -166,6 +255,42 @@ def _remove_stale_temps(folder: Path, name: str) -> None:
         pass
 
 
+def _refuse_replacing(path: Path, st: os.stat_result) -> None:
+    """Refuse to replace an existing file whose replacement would quietly change what the user set
+    up: its write protection, its owner, or its other names (hard links)."""
+    try:
+        read_only_mount = bool(os.statvfs(path).f_flag & os.ST_RDONLY)
+    except (OSError, AttributeError):
+        read_only_mount = False
+    # on a read-only mount the write itself fails and says so (EROFS); here: the file's own protection
+    if not read_only_mount and (not st.st_mode & 0o222 or not os.access(path, os.W_OK)):
+        raise SaveError(f"{path}: the file is read-only; not saved (nothing lost). To keep the change, "
+                        f"{ELSEWHERE}, or make it writable (chmod u+w)")
+    euid = os.geteuid() if hasattr(os, "geteuid") else st.st_uid
+    if euid not in (0, st.st_uid):
+        raise SaveError(f"{path}: belongs to another user (uid {st.st_uid}); saving would make it yours, so "
+                        f"not saved (nothing lost): {ELSEWHERE}")
+    if st.st_nlink > 1:
+        raise SaveError(f"{path}: has {st.st_nlink} hard links (other names for the same file); replacing it "
+                        f"would leave them with the old setup, so not saved (nothing lost): {ELSEWHERE}")
+
+
+def _keep_owner_and_mode(fd: int, st: Optional[os.stat_result]) -> None:
+    """Give the new file the old one's owner, group and mode (the umask would narrow the mode)."""
+    if st is None:
+        return
+    own = os.fstat(fd)
+    if (own.st_uid, own.st_gid) != (st.st_uid, st.st_gid) and hasattr(os, "fchown"):
+        try:
+            os.fchown(fd, st.st_uid, st.st_gid)
+        except PermissionError:
+            try:  # not a member of the old group: keep the owner at least (checked before writing)
+                os.fchown(fd, st.st_uid, -1)
+            except PermissionError:
+                pass
+    os.fchmod(fd, stat_mod.S_IMODE(st.st_mode))  # after chown, which clears set-id bits
+
+
 def write_atomic(path: Path, text: str) -> int:
     """Replace `path` with `text` atomically; returns the new mtime_ns. Raises SaveError."""
     path = Path(path)
@@ -176,16 +301,23 @@ def write_atomic(path: Path, text: str) -> int:
         raise SaveError(f"{path}: is a folder, not a setup file")
     if not folder.is_dir():
         raise SaveError(f"{path}: folder {folder} does not exist")
+    try:
+        old = os.stat(path)
+    except FileNotFoundError:
+        old = None
+    except OSError as exc:
+        raise SaveError(f"{path}: not saved: {exc.strerror or exc} (the setup is still open, nothing lost)") from None
+    if old is not None:
+        if not stat_mod.S_ISREG(old.st_mode):
+            raise SaveError(f"{path}: not a regular file; not saved (nothing lost): {ELSEWHERE}")
+        _refuse_replacing(path, old)
     _remove_stale_temps(folder, path.name)
     tmp = folder / f".{path.name}.{secrets.token_hex(4)}{TMP_SUFFIX}"
     data = text.encode("utf-8")
     try:
-        mode = os.stat(path).st_mode & 0o777 if path.exists() else 0o644
-    except OSError:
-        mode = 0o644
-    try:
-        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, mode)
+        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o644 if old is None else 0o600)
         try:
+            _keep_owner_and_mode(fd, old)
             view = memoryview(data)
             while view:
                 view = view[os.write(fd, view):]
@@ -210,34 +342,59 @@ def write_atomic(path: Path, text: str) -> int:
     return os.stat(path).st_mtime_ns
 
 
+def _changed_on_disk(loaded: LoadedSetup, target: Path) -> bool:
+    """True when the loaded file's bytes on disk are no longer the ones read (a deleted file is
+    not a change: saving recreates it)."""
+    if loaded.sha256 is not None:
+        now = file_sha256(target)
+        return now is not None and now != loaded.sha256
+    try:
+        return os.stat(target).st_mtime_ns != loaded.mtime_ns
+    except OSError:
+        return False
+
+
 def save_setup(loaded: Optional[LoadedSetup], setup: Setup, path=None, *, force: bool = False) -> LoadedSetup:
     """Save `setup` to `path` (default: where it was loaded from), merging into the loaded text.
 
     Raises
     ------
     FileChangedOnDisk
-        The target is the loaded file and it changed on disk since it was read (unless `force`).
+        The target is the loaded file and its bytes changed on disk since it was read (unless `force`).
+    LinkToNowhere
+        The target is a symbolic link to a file that does not exist (unless `force`).
     SaveError
         Anything else that stops the save; the file on disk is left as it was.
     """
     target = Path(path) if path is not None else (loaded.path if loaded is not None else None)
     if target is None:
         raise SaveError("no file name yet: use save-as")
-    if (not force and loaded is not None and loaded.path is not None and loaded.mtime_ns is not None
-            and Path(loaded.path).resolve() == target.resolve()):
-        try:
-            now = os.stat(target).st_mtime_ns
-        except OSError:
-            now = None
-        if now is not None and now != loaded.mtime_ns:
-            raise FileChangedOnDisk(f"{target}: changed on disk since it was loaded")
-    text = render_setup(loaded, setup)
+    if not force and target.is_symlink() and not target.exists():
+        real = os.path.realpath(target)
+        raise LinkToNowhere(f"{target}: a link to {real}, which does not exist",
+                            f"{target.name} is a link to {real}, which does not exist. Create that file?")
+    if (not force and loaded is not None and loaded.path is not None
+            and (loaded.sha256 is not None or loaded.mtime_ns is not None)
+            and Path(loaded.path).resolve() == target.resolve() and _changed_on_disk(loaded, target)):
+        raise FileChangedOnDisk(f"{target}: changed on disk since it was loaded",
+                                f"{target.name} changed on disk since it was opened. Overwrite it?")
+    try:
+        text = render_setup(loaded, setup)
+    except Exception as exc:  # noqa: BLE001 - a layout tomlkit cannot merge into: refuse, lose nothing
+        raise SaveError(f"{target}: not saved: this file's layout cannot take the change "
+                        f"({type(exc).__name__}); nothing lost: {ELSEWHERE}") from None
     try:
         check, data, _ = parse_setup(text, str(target))
     except SetupError as exc:  # never write a file slopetune itself could not read back
         raise SaveError(f"{target}: not saved: {exc.reason}") from None
+    differs = setup_difference(setup, check)
+    if differs:
+        raise SaveError(f"{target}: not saved: in this file's layout {differs} would read back different; "
+                        f"nothing lost: {ELSEWHERE}")
     mtime = write_atomic(target, text)
-    return LoadedSetup(target, check, text, data, mtime, [])
+    raw = text.encode("utf-8")
+    return LoadedSetup(target, check, text[1:] if text.startswith(BOM) else text, data, mtime, [],
+                       hashlib.sha256(raw).hexdigest(), text.startswith(BOM))
 
 
 def set_keys(path, values: dict) -> LoadedSetup:
@@ -258,4 +415,4 @@ def set_keys(path, values: dict) -> LoadedSetup:
 
 
 
-__all__ = ["SaveError", "FileChangedOnDisk", "render_setup", "save_setup", "set_keys", "write_atomic"]
+__all__ = ["SaveError", "SaveNeedsConfirmation", "FileChangedOnDisk", "LinkToNowhere", "setup_difference", "render_setup", "save_setup", "set_keys", "write_atomic"]

@@ -15,6 +15,7 @@ from textual.containers import Horizontal, Vertical
 from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import Button, Static
+from slopetune.engine.safe_text import one_line
 
 # Words from files and setups may hold brackets: never read them as markup.
 Plain = partial(Static, markup=False)
@@ -45,7 +46,7 @@ class ConfirmScreen(ModalScreen["bool | str"]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="confirm-box"):
-            yield Plain(self.question, id="confirm-question")
+            yield Plain(one_line(self.question), id="confirm-question")
             with Horizontal(id="confirm-buttons"):
                 if self.other_label:
                     yield Button(Content(f"{self.other_label} ({self.other_key})"), id="confirm-other", compact=True)

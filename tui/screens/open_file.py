@@ -15,6 +15,7 @@ from textual.containers import Vertical
 from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import OptionList, Static
+from slopetune.engine.safe_text import one_line
 from textual.widgets.option_list import Option
 
 # Words from files and setups may hold brackets: never read them as markup.
@@ -112,8 +113,8 @@ def entry_prompt(entry: SetupFileEntry) -> Content:
 
     Long paths lose their start (the file name matters most), then the name or problem is cut.
     """
-    words = entry.name if entry.problem is None else entry.problem
-    path = _clip_left(entry.shown_path, max(LINE_CHARS - 2 - len(words or ""), 32))
+    words = one_line(entry.name if entry.problem is None else entry.problem)
+    path = _clip_left(one_line(entry.shown_path), max(LINE_CHARS - 2 - len(words or ""), 32))
     words = _clip(words or "", max(LINE_CHARS - 2 - len(path), 12))
     if entry.problem is None:
         return Content.assemble((words, "bold"), "  ", (path, "$text-muted"))

@@ -22,6 +22,7 @@ from textual.timer import Timer
 from textual.widgets import Input, Static
 
 from slopetune.engine import Setup
+from slopetune.engine.safe_text import one_line
 from slopetune.engine.goal_seek import (
     AddBallast, CgHeight, Compound, LeverError, MoveBallast, Overdrive, Plan, Target,
     angle_value_deg, plan,
@@ -178,7 +179,7 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
         angle, value = self._defaults()
         angles = list(ANGLE_CHOICES.items())
         lo, hi = default_limits("ballast", self.setup)
-        items = [(str(i), f"{i + 1}: {b.name}") for i, b in enumerate(rig.ballast)] or [("-1", "no ballast items")]
+        items = [(str(i), f"{i + 1}: {one_line(b.name)}") for i, b in enumerate(rig.ballast)] or [("-1", "no ballast items")]
         with Vertical(id="plan-box"):
             yield Static("Plan a change: what reaches a target angle", id="plan-title")
             with Horizontal(classes="p-row"):

@@ -20,6 +20,7 @@ from textual.scroll_view import ScrollView
 from textual.strip import Strip
 
 from slopetune.engine import Setup
+from slopetune.engine.safe_text import one_line
 
 from . import form_fields as ff
 from .line_strips import text_strip
@@ -177,7 +178,7 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
     def _second(self, view: RowView) -> Optional[Text]:
         """The line under a row: the reason a value was refused (first), else the hint."""
         if view.error:
-            return Text(f"  ! {view.error}", self._part("setup-form--error"))
+            return Text(f"  ! {one_line(view.error)}", self._part("setup-form--error"))
         if view.hint:
             return Text(f"  {view.hint}", self._part("setup-form--hint"))
         return None
@@ -272,15 +273,17 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             text.append(f"{mark}{v.text}")
             return text
         label_w = 15 if width >= 28 else max(8, width // 2)
-        text.append(f"{mark}{v.text[:label_w - 1]:<{label_w - 1}} ")
+        text.append(f"{mark}{one_line(v.text)[:label_w - 1]:<{label_w - 1}} ")
         room = max(width - label_w - 1, 4)
         if v.editing is not None:
-            typed = v.editing[-(room - 2):] if room > 3 else v.editing
+            editing = one_line(v.editing)  # file text: control and bidi characters spelled out
+            typed = editing[-(room - 2):] if room > 3 else editing
             # the old value, offered to be replaced, shows reversed (a selection) without colour too
             text.append(typed, style("setup-form--edit") + (Style(reverse=True) if v.fresh else Style()))
             text.append("_", style("setup-form--edit"))
         elif row.kind in ("text", "info"):
-            shown = v.value if len(v.value) <= room else v.value[: max(room - 3, 1)] + "..."
+            value = one_line(v.value)
+            shown = value if len(value) <= room else value[: max(room - 3, 1)] + "..."
             text.append(shown, style("setup-form--value"))
         elif row.kind != "number":
             text.append(f"{v.value[:room]:>{room}}", style("setup-form--value"))

@@ -5,6 +5,7 @@ from __future__ import annotations
 from rich.text import Text
 from textual.reactive import reactive
 from textual.widget import Widget
+from slopetune.engine.safe_text import one_line
 
 
 class TitleBar(Widget):
@@ -36,9 +37,11 @@ class TitleBar(Widget):
         room = max(width - right.cell_len - 1, 1)
         marker = "* UNSAVED " if self.unsaved else ""
         # the program's name goes first when the line is short; the setup name is cropped last
-        words = f"slopetune | {self.file_label} | {self.setup_name}"
+        # names come from files: control and bidi characters are spelled out, never sent raw
+        name, label = one_line(self.setup_name), one_line(self.file_label)
+        words = f"slopetune | {label} | {name}"
         if len(marker) + len(words) > room:
-            words = f"{self.file_label} | {self.setup_name}"
+            words = f"{label} | {name}"
         left = Text(no_wrap=True, overflow="crop")
         if marker:
             left.append(marker, self.get_component_rich_style("title-bar--unsaved"))
