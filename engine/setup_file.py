@@ -41,11 +41,11 @@ SECTIONS = ("rig", "driveline", "grip", "terrain", "course")
 TOP_KEYS = ("schema", "name", "notes") + SECTIONS
 SECTION_KEYS = {
     "rig": ("mass_g", "wheelbase_mm", "front_bias_pct", "cg_height_mm", "track_mm",
-            "tire_dia_front_mm", "tire_dia_rear_mm", "ballast"),
+            "tire_dia_front_mm", "tire_dia_rear_mm", "roll_stiffness_front_pct", "ballast"),
     "driveline": ("overdrive_pct", "front_stages", "rear_stages"),
     "grip": ("mu_static", "mu_kinetic", "rolling_resistance", "front_mu_static", "front_mu_kinetic",
              "rear_mu_static", "rear_mu_kinetic"),
-    "terrain": ("slope_deg", "accel_g", "load"),
+    "terrain": ("slope_deg", "accel_g", "load", "heading_deg"),
     "course": ("name", "points_mm", "belly_clearance_mm"),
 }
 BALLAST_KEYS = ("name", "mass_g", "x_mm", "z_mm")
@@ -238,7 +238,8 @@ class _Reader:
         if load not in LOAD_MODES:
             self.fail("terrain.load", f"terrain.load = {_show(load)}: must be one of {', '.join(map(repr, LOAD_MODES))}")
         terrain = Terrain(self.number(t, "slope_deg", "terrain.slope_deg"),
-                          self.number(t, "accel_g", "terrain.accel_g"), load)
+                          self.number(t, "accel_g", "terrain.accel_g"), load,
+                          self.number(t, "heading_deg", "terrain.heading_deg"))
 
         course = self.course() if "course" in d else None
         setup = Setup(name=name, notes=notes, rig=rig, driveline=driveline, grip=grip, terrain=terrain, course=course)

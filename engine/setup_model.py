@@ -36,6 +36,7 @@ class Rig:
     tire_dia_front_mm: float
     tire_dia_rear_mm: float
     ballast: tuple[BallastItem, ...] = ()
+    roll_stiffness_front_pct: Optional[float] = None  # front share of the roll moment; None: by axle load
 
 
 @dataclass(frozen=True)
@@ -87,6 +88,7 @@ class Terrain:
     slope_deg: float
     accel_g: float = 0.0  # throttle acceleration along the slope [g]
     load: str = "climb"  # "climb": steady climb; "none": coasting / creeping
+    heading_deg: float = 0.0  # nose from straight up the fall line, clockwise from above [deg]
 
 
 @dataclass(frozen=True)
@@ -185,6 +187,8 @@ FIELDS: dict[str, FieldRule] = {
     "rig.track_mm": FieldRule(**_POS, hi=1e5, unit="mm", help="tyre centre to tyre centre"),
     "rig.tire_dia_front_mm": FieldRule(**_DIVISOR_MM, hi=1e4, unit="mm", help="front tyre outer diameter"),
     "rig.tire_dia_rear_mm": FieldRule(**_DIVISOR_MM, hi=1e4, unit="mm", help="rear tyre outer diameter"),
+    "rig.roll_stiffness_front_pct": FieldRule(lo=0.0, hi=100.0, optional=True, unit="%",
+                                              help="front share of the roll moment; unset: by axle load"),
     "ballast.mass_g": FieldRule(lo=-1e6, hi=1e6, lo_open=False, hi_open=False, unit="g",
                                 help="added mass; negative: removed"),
     "ballast.x_mm": FieldRule(lo=-1e5, hi=1e5, lo_open=False, hi_open=False, unit="mm",
@@ -204,6 +208,9 @@ FIELDS: dict[str, FieldRule] = {
     "grip.rear_mu_static": FieldRule(**_POS, hi=5.0, hi_open=False, optional=True, help="rear static friction"),
     "grip.rear_mu_kinetic": FieldRule(**_POS, hi=5.0, hi_open=False, optional=True, help="rear kinetic friction"),
     "terrain.slope_deg": FieldRule(lo=-90.0, hi=90.0, unit="deg", help="nose up > 0"),
+    "terrain.heading_deg": FieldRule(lo=-180.0, hi=180.0, lo_open=False, hi_open=False, optional=True,
+                                     default=0.0, unit="deg",
+                                     help="nose from straight up the fall line, clockwise; 90: left side uphill"),
     "terrain.accel_g": FieldRule(lo=-2.0, hi=2.0, lo_open=False, hi_open=False, optional=True, default=0.0,
                                  unit="g", help="throttle acceleration along the slope"),
 }
