@@ -40,6 +40,14 @@ BISECT_TO_DEG = 0.01
 DEFAULT_STEP_DEG = 5.0
 
 
+def plane_pose(slope_deg: float, heading_deg: float) -> tuple[float, float]:
+    """(β >= 0, ψ) for a setup's slope and heading: a nose-down slope is the same plane faced the
+    other way (β < 0 at ψ is |β| at ψ + 180). [deg]"""
+    if slope_deg < 0:
+        return -slope_deg, (heading_deg + 360.0) % 360.0 - 180.0
+    return slope_deg, heading_deg
+
+
 def heading_grid(step_deg: float = DEFAULT_STEP_DEG) -> np.ndarray:
     """Headings 0, step, ... below 360. [deg]"""
     return np.arange(0.0, 360.0 - 1e-9, step_deg)
@@ -230,7 +238,7 @@ def heading_sweep(setup: Setup, headings_deg=None) -> HeadingSweep:
     tip, edge = model.tip(headings)
     lift, what = model.wheel_lift(headings)
     hold, limit = model.hold(headings)
-    slope, heading = setup.terrain.slope_deg, setup.terrain.heading_deg
+    slope, heading = plane_pose(setup.terrain.slope_deg, setup.terrain.heading_deg)
     wheels = model.wheel_loads(slope, heading)
     margins = oc.edge_margins_deg(model.L, model.b, model.h, model.T, slope, heading)
     return HeadingSweep(headings, tip, edge, lift, what, hold, limit, float(slope), float(heading), wheels,

@@ -3,4 +3,4 @@
 `register` adds its parser and sets `func=run` where `run(args) -> int` is the exit code.
 """
 
-COMMANDS = ("report", "measure", "walk", "plan", "compare")
+COMMANDS = ("report", "measure", "walk", "plan", "compare", "headings")
