@@ -25,7 +25,7 @@ import numpy as np
 from . import off_camber as oc
 from .analysis import effective_rig, setup_overdrive
 from .setup_model import Setup
-from .traction import BOTH, FRONT, LIFTED, REAR
+from .traction import BOTH, FRONT, LIFTED, REAR, slip_traction_state, traction_state
 
 # What ends the hold at a heading, in the order a tie is named.
 LIMITS = ("none", "tip", "lift", "slide", "crab", "slip")
@@ -54,14 +54,23 @@ def heading_grid(step_deg: float = DEFAULT_STEP_DEG) -> np.ndarray:
 
 
 def _traction(nf, nr, f_req, mu_f, mu_r, stiffness, speed_ratio):
-    """The section 5 solve (tyre slip under wind-up) with per-sample friction."""
-    try:
-        from .traction import slip_traction_state
-    except ImportError:  # TEMPORARY until the slip solve lands: the rigid rule
-        from .traction import traction_state
-        od = "front" if np.all(speed_ratio > 1) else "rear" if np.all(speed_ratio < 1) else None
-        return traction_state(nf, nr, f_req, mu_f, mu_r, od)
-    return slip_traction_state(nf, nr, f_req, mu_f, mu_r, stiffness[0], stiffness[1], speed_ratio)
+    """The section 5 solve (tyre slip under wind-up) with per-sample friction.
+
+    The rigid limit is the Coulomb rule per overdriven axle (it broadcasts array friction)."""
+    if not (np.isinf(stiffness[0]) and np.isinf(stiffness[1])):
+        return slip_traction_state(nf, nr, f_req, mu_f, mu_r, stiffness[0], stiffness[1], speed_ratio)
+    ratio = np.broadcast_to(np.asarray(speed_ratio, dtype=float), np.shape(f_req))
+    state = np.zeros(np.shape(f_req), dtype=np.int8)
+    for axle, pick in ((None, np.abs(ratio - 1.0) <= 1e-12), ("front", ratio - 1.0 > 1e-12),
+                       ("rear", ratio - 1.0 < -1e-12)):  # three array calls, not a loop over samples
+        if pick.any():
+            state = np.where(pick, traction_state(nf, nr, f_req, mu_f, mu_r, axle).state, state)
+    return _States(state)
+
+
+@dataclass(frozen=True)
+class _States:
+    state: np.ndarray
 
 
 class PlaneModel:
@@ -101,19 +110,35 @@ class PlaneModel:
             return hook(self.setup, front_g, rear_g)
         return np.full(np.shape(front_g), self.od.ratio)
 
-    def traction(self, slope_deg, heading_deg):
-        """(front N, rear N, side demand t, TractionState) along the heading, steady (``a_x = 0``)."""
+    def traction(self, slope_deg, heading_deg, only_needed: bool = False):
+        """(front N, rear N, side demand t, state codes) along the heading, steady (``a_x = 0``).
+
+        With `only_needed`, the slip solve runs only where its answer can matter: both axles down
+        and no sideways slide (the state is `LIFTED` elsewhere). States are codes into
+        `traction.STATES`.
+        """
         nf, nr = oc.plane_axle_loads_g(self.weight, self.L, self.b, self.h, slope_deg, heading_deg)
         f_req = oc.plane_required_g(self.weight, slope_deg, heading_deg, self.crr)
         t = oc.side_demand(slope_deg, heading_deg)
         nf, nr, f_req, t = np.broadcast_arrays(nf, nr, f_req, t)
-        mu_f = tuple(np.maximum(oc.friction_circle_mu(m, t), 1e-6) for m in self.mu_f)
-        mu_r = tuple(np.maximum(oc.friction_circle_mu(m, t), 1e-6) for m in self.mu_r)
-        # a sideways slide is classified separately; keep the solve well posed there
-        mu_f = (mu_f[0], np.minimum(mu_f[1], mu_f[0]))
-        mu_r = (mu_r[0], np.minimum(mu_r[1], mu_r[0]))
-        state = _traction(nf, nr, f_req, mu_f, mu_r, self.stiffness, self.speed_ratio(nf, nr))
+        need = (t < self.slide_at) & (nf > 0) & (nr > 0) if only_needed else np.ones(nf.shape, bool)
+        state = np.full(nf.shape, LIFTED, dtype=np.int8)
+        if need.any():
+            nf_, nr_, f_, t_ = nf[need], nr[need], f_req[need], t[need]
+            # the friction circle; a floor keeps the solve well posed on the edge of a slide
+            mu_f = tuple(np.maximum(oc.friction_circle_mu(m, t_), 1e-6) for m in self.mu_f)
+            mu_r = tuple(np.maximum(oc.friction_circle_mu(m, t_), 1e-6) for m in self.mu_r)
+            mu_f = (mu_f[0], np.minimum(mu_f[1], mu_f[0]))
+            mu_r = (mu_r[0], np.minimum(mu_r[1], mu_r[0]))
+            ts = _traction(nf_, nr_, f_, mu_f, mu_r, self.stiffness, self.speed_ratio(nf_, nr_))
+            state[need] = ts.state
         return nf, nr, t, state
+
+    @property
+    def slide_at(self) -> float:
+        """Side demand ``t`` at which the first axle slides sideways: ``min(μ_s,f, μ_s,r)``, less a
+        rounding margin (``tan 45° sin 90°`` is 1 − 1e-16: no grip left to solve with there)."""
+        return min(self.mu_f[0], self.mu_r[0]) - 1e-9
 
     def classify(self, slope_deg, heading_deg, with_tip: bool = True) -> np.ndarray:
         """What stops the rig at each (slope, heading): codes into `LIMITS` (``HOLDS``: it holds).
@@ -122,21 +147,18 @@ class PlaneModel:
         """
         slope = np.asarray(slope_deg, dtype=float)
         heading = np.asarray(heading_deg, dtype=float)
-        nf, nr, t, ts = self.traction(slope, heading)
+        nf, nr, t, st = self.traction(slope, heading, only_needed=True)
         code = np.full(nf.shape, HOLDS, dtype=np.int8)
-        st = ts.state
         code = np.where(st == BOTH, SLIP, code)
         # a scrubbing axle slides sideways too: past its own kinetic mu it cannot carry its share
         crab = ((st == FRONT) & (t >= self.mu_f[1])) | ((st == REAR) & (t >= self.mu_r[1]))
         code = np.where(crab, CRAB, code)
-        code = np.where(t >= min(self.mu_f[0], self.mu_r[0]), SLIDE, code)
+        code = np.where(t >= self.slide_at, SLIDE, code)
         if with_tip:
             x, y = oc.gravity_foot_mm(self.b, self.h, slope, heading)
             x, y = np.broadcast_arrays(x, y)
             code = np.where(~(np.abs(y) < self.T / 2), TIP, code)
             code = np.where(~((x > 0) & (x < self.L)), LIFT, code)
-        else:
-            code = np.where(st == LIFTED, HOLDS, code)
         return code.astype(np.int8)
 
     # ----- the hold angle

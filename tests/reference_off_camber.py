@@ -121,12 +121,30 @@ def wheel_lift_deg(rig: PlaneRig, heading_deg: float) -> Optional[float]:
     return _first_root(lambda s: min(split_loads(rig, s, heading_deg)))
 
 
-def rigid_state(rig: PlaneRig, slope_deg: float, heading_deg: float) -> str:
-    """"hold", "slip", "slide", "crab" or "tip" at one (slope, heading), rigid Coulomb rule.
+def rigid_axles(rig: PlaneRig, nf, nr, f_req, mu_f, mu_r) -> str:
+    """Which axle lets go under the rigid Coulomb rule: "none", "front", "rear" or "both".
 
     Under wind-up the pair grows until one contact reaches its static limit; the overdriven axle
     gets there first when ``μ_fast N_fast − μ_slow N_slow < F_req``, and the other must then carry
-    the rest within its own static limit. Friction is what the friction circle leaves.
+    the rest within its own static limit.
+    """
+    (fs, fk), (rs, rk) = mu_f, mu_r
+    if rig.overdriven is None:
+        return "none" if abs(f_req) <= fs * nf + rs * nr else "both"
+    if rig.overdriven == "front":
+        fast_n, slow_n, fast_s, fast_k, slow_s, slow_k, fast, slow = nf, nr, fs, fk, rs, rk, "front", "rear"
+    else:
+        fast_n, slow_n, fast_s, fast_k, slow_s, slow_k, fast, slow = nr, nf, rs, rk, fs, fk, "rear", "front"
+    if fast_s * fast_n - slow_s * slow_n < f_req:  # fast axle lets go, driving forward
+        return fast if abs(f_req - fast_k * fast_n) <= slow_s * slow_n else "both"
+    return slow if abs(f_req + slow_k * slow_n) <= fast_s * fast_n else "both"  # slow axle dragged back
+
+
+def plane_state(rig: PlaneRig, slope_deg: float, heading_deg: float, axles: Callable = None) -> str:
+    """"hold", "slip", "slide", "crab" or "tip" at one (slope, heading).
+
+    `axles(nf, nr, f_req, (μ's,f, μ'k,f), (μ's,r, μ'k,r))` names the axle that lets go (default
+    the rigid rule above); friction is what the friction circle leaves.
     """
     if edge_room(rig, slope_deg, heading_deg) <= 0:
         return "tip"
@@ -135,32 +153,25 @@ def rigid_state(rig: PlaneRig, slope_deg: float, heading_deg: float) -> str:
     f_req = rig.weight_g * (math.sin(b_) * math.cos(p_) + rig.rolling_resistance * math.cos(b_))
     t = abs(math.tan(b_) * math.sin(p_))
     (fs, fk), (rs, rk) = rig.mu_front, rig.mu_rear
-    if t >= min(fs, rs):
+    if t >= min(fs, rs) - 1e-9:
         return "slide"
-    circle = lambda mu: math.sqrt(max(mu * mu - t * t, 0.0))  # noqa: E731
-    fs_, fk_, rs_, rk_ = circle(fs), circle(fk), circle(rs), circle(rk)
-    if rig.overdriven is None:
-        return "hold" if abs(f_req) <= fs_ * nf + rs_ * nr else "slip"
-    if rig.overdriven == "front":
-        fast_n, slow_n, fast_s, fast_k, slow_s, slow_k, fast_kin = nf, nr, fs_, fk_, rs_, rk_, fk
-        slow_kin = rk
+    circle = lambda mu: max(math.sqrt(max(mu * mu - t * t, 0.0)), 1e-6)  # noqa: E731
+    mu_f = (circle(fs), min(circle(fk), circle(fs)))
+    mu_r = (circle(rs), min(circle(rk), circle(rs)))
+    if axles is None:
+        state = rigid_axles(rig, nf, nr, f_req, mu_f, mu_r)
     else:
-        fast_n, slow_n, fast_s, fast_k, slow_s, slow_k, fast_kin = nr, nf, rs_, rk_, fs_, fk_, rk
-        slow_kin = fk
-    if fast_s * fast_n - slow_s * slow_n < f_req:  # fast axle lets go, driving forward
-        rest = f_req - fast_k * fast_n
-        if abs(rest) > slow_s * slow_n:
-            return "slip"
-        return "crab" if t >= fast_kin else "hold"
-    rest = f_req + slow_k * slow_n  # slow axle dragged back
-    if abs(rest) > fast_s * fast_n:
+        state = axles(nf, nr, f_req, mu_f, mu_r)
+    if state == "both":
         return "slip"
-    return "crab" if t >= slow_kin else "hold"
+    if (state == "front" and t >= fk) or (state == "rear" and t >= rk):
+        return "crab"
+    return "hold"
 
 
 def hold_deg(rig: PlaneRig, heading_deg: float, state: Callable = None, step=0.25) -> tuple[float, str]:
     """Top of the contiguous held range from 0 at one heading, and what ends it (halving to 1e-4 deg)."""
-    state = state or rigid_state
+    state = state or plane_state
     s = 0.0
     if state(rig, 0.0, heading_deg) != "hold":
         return 0.0, state(rig, 0.0, heading_deg)

@@ -40,11 +40,18 @@ def round_rig(overdrive_pct=0.0, mu=(1.0, 0.8), rolling=0.0, share=None, **grip)
     )
 
 
-def _rigid(setup: Setup) -> Setup:
-    """The rigid-driveline limit of the slip model, however this build spells it."""
-    if "slip_stiffness" in Grip.__dataclass_fields__:
-        return replace(setup, grip=replace(setup.grip, slip_stiffness=math.inf))
-    return setup
+def model(setup: Setup, stiffness=math.inf) -> PlaneModel:
+    """The plane model with a slip stiffness per unit load on both axles (inf: the rigid limit)."""
+    m = PlaneModel(setup)
+    m.stiffness = (stiffness, stiffness)
+    return m
+
+
+def model_example_rig() -> Setup:
+    """The demo rig as MODEL sections 5 and 8 quote it: 7.1 % overdrive, μ 1.0/0.8 on both axles,
+    no rolling resistance."""
+    s = demo_setup()
+    return replace(s, grip=Grip(1.0, 0.8, 0.0))
 
 
 # --- wheel loads -------------------------------------------------------------------------------
@@ -96,8 +103,7 @@ def test_diagonal_rigid_overdrive_worked_by_hand():
       f(u) = μ'_s N_R + μ'_k N_F − F_req:  f(0.93) = +0.0121,  f(0.94) = −0.0016
       -> u = 0.9388 by linear interpolation, β = 43.19° (slip); the crab limit
       (t >= μ_k: u >= 1.1314, 48.5°) and the tip (54.74°) come later."""
-    s = _rigid(round_rig(overdrive_pct=5.0))
-    hold, limit = PlaneModel(s).hold([45.0])
+    hold, limit = model(round_rig(overdrive_pct=5.0)).hold([45.0])
     assert float(hold[0]) == pytest.approx(43.19, abs=0.03)
     assert LIMITS[int(limit[0])] == "slip"
 
@@ -212,8 +218,8 @@ def test_planar_states_along_heading_0_and_180():
     planar = analyse(s, np.concatenate([slopes, -slopes]), accel_g=0.0, load="climb").sweep.traction.state
     _, _, _, up = m.traction(slopes, 0.0)
     _, _, _, down = m.traction(slopes, 180.0)
-    assert np.array_equal(up.state, planar[: len(slopes)])
-    assert np.array_equal(down.state, planar[len(slopes):])
+    assert np.array_equal(up, planar[: len(slopes)])
+    assert np.array_equal(down, planar[len(slopes):])
 
 
 def test_sidehill_hold_is_atan_min_mu_when_no_axle_scrubs():
@@ -226,25 +232,27 @@ def test_sidehill_hold_is_atan_min_mu_when_no_axle_scrubs():
     assert [LIMITS[c] for c in limit] == ["slide", "slide"]
 
 
-def test_crab_rule_rigid_example_of_model_section_8():
-    """MODEL section 8: demo rig, ψ = 90, rigid limit: 38.7° (the rear scrubs under wind-up, so it
-    cannot carry its sideways share past t = μ_k = 0.8: atan 0.8 = 38.66°), not atan μ_s = 45°."""
-    s = _rigid(demo_setup())
-    hold, limit = PlaneModel(s).hold([90.0])
-    assert float(hold[0]) == pytest.approx(math.degrees(math.atan(0.8)), abs=0.01)
-    assert round(float(hold[0]), 1) == 38.7
+@pytest.mark.parametrize("stiffness, want", [(math.inf, 38.7), (20.0, 43.1)])
+def test_crab_rule_examples_of_model_section_8(stiffness, want):
+    """MODEL section 8 worked examples: demo rig, ψ = 90: the hold angle is 43.1° at c = 20 and
+    38.7° in the rigid limit (the rear scrubs under wind-up, so past t = μ_k = 0.8, atan 0.8 =
+    38.66°, it cannot carry its sideways share), not atan μ_s = 45°."""
+    hold, limit = model(model_example_rig(), stiffness).hold([90.0])
+    assert round(float(hold[0]), 1) == want
     assert LIMITS[int(limit[0])] == "crab"
+    if math.isinf(stiffness):
+        assert float(hold[0]) == pytest.approx(math.degrees(math.atan(0.8)), abs=0.01)
 
 
 @pytest.mark.parametrize("overdrive", [0.0, 7.0, -6.0])
 def test_rigid_hold_agrees_with_the_scalar_reference(overdrive):
     """Independent per-heading scalar scan (rigid rule written afresh) agrees to 0.01 deg."""
-    s = _rigid(round_rig(overdrive_pct=overdrive, rolling=0.03, mu=(1.0, 0.8), front_mu_static=1.1,
-                         front_mu_kinetic=0.85))
+    s = round_rig(overdrive_pct=overdrive, rolling=0.03, mu=(1.0, 0.8), front_mu_static=1.1,
+                  front_mu_kinetic=0.85)
     r = ref.PlaneRig(1000.0, 300.0, 150.0, 100.0, 200.0, (1.1, 0.85), (1.0, 0.8), 0.03,
                      None if overdrive == 0 else "front" if overdrive > 0 else "rear")
     headings = np.arange(0.0, 360.0, 20.0)
-    hold, limit = PlaneModel(s).hold(headings)
+    hold, limit = model(s).hold(headings)
     for i, psi in enumerate(headings):
         want, what = ref.hold_deg(r, psi)
         assert hold[i] == pytest.approx(want, abs=0.01), psi
@@ -261,3 +269,25 @@ def test_heading_sweep_is_mirror_symmetric_and_complete():
     for arr in (hs.tip_deg, hs.hold_deg, hs.wheel_lift_deg):
         assert np.allclose(arr, arr[mirror.astype(int)])
     assert np.all(hs.hold_deg <= hs.tip_deg + 1e-9)
+
+
+@pytest.mark.parametrize("stiffness", [8.0, 20.0])
+def test_slip_hold_agrees_with_the_scalar_reference(stiffness):
+    """Independent per-heading scan with the brentq section 5 solver of test_tyre_slip (a different
+    method) agrees with the vectorised scan and bisection to 0.02 deg on the demo rig."""
+    from test_tyre_slip import reference_state
+
+    s = demo_setup()
+    m = model(s, stiffness)
+    r = ref.PlaneRig(m.weight, m.L, m.b, m.h, m.T, m.mu_f, m.mu_r, m.crr)
+    ratio = m.od.ratio
+
+    def axles(nf, nr, f_req, mu_f, mu_r):
+        return reference_state(nf, nr, f_req, mu_f, mu_r, stiffness, stiffness, ratio)[0]
+
+    headings = np.array([0.0, 40.0, 90.0, 135.0, 180.0])
+    hold, limit = m.hold(headings)
+    for i, psi in enumerate(headings):
+        want, what = ref.hold_deg(r, psi, lambda rig, b, p: ref.plane_state(rig, b, p, axles), step=0.5)
+        assert hold[i] == pytest.approx(want, abs=0.02), psi
+        assert LIMITS[int(limit[i])] == what, psi

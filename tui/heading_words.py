@@ -86,8 +86,8 @@ def here_line(setup, units: Units) -> str:
     code = LIMITS[int(model.classify(slope, heading))]
     if code != "none":
         return f"{where}: {LIMIT_LONG[code]}"
-    _nf, _nr, t, ts = model.traction(slope, heading)
-    state = STATES[int(ts.state)]
+    _nf, _nr, t, st = model.traction(slope, heading)
+    state = STATES[int(st)]
     if state in ("front", "rear"):
         other = "rear" if state == "front" else "front"
         crab = "; it crabs downhill" if float(t) > 0 else ""
