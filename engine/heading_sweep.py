@@ -265,3 +265,15 @@ def heading_sweep(setup: Setup, headings_deg=None) -> HeadingSweep:
     margins = oc.edge_margins_deg(model.L, model.b, model.h, model.T, slope, heading)
     return HeadingSweep(headings, tip, edge, lift, what, hold, limit, float(slope), float(heading), wheels,
                         margins, model.share is not None)
+
+
+def at_pose(hs: HeadingSweep, setup: Setup) -> HeadingSweep:
+    """`hs` with the wheel loads and margins at `setup`'s slope and heading (the per-heading curves
+    do not depend on them, so stepping the slope or heading needs no new sweep)."""
+    from dataclasses import replace
+
+    model = PlaneModel(setup)
+    slope, heading = plane_pose(setup.terrain.slope_deg, setup.terrain.heading_deg)
+    return replace(hs, slope_deg=float(slope), setup_heading_deg=float(heading),
+                   wheels=model.wheel_loads(slope, heading),
+                   margins_deg=oc.edge_margins_deg(model.L, model.b, model.h, model.T, slope, heading))

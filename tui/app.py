@@ -135,6 +135,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         Binding("p", "plan", "Plan a setup (if installed)", show=False, id="tuner.plan"),
         Binding("ctrl+z,z", "undo", "Undo", id="tuner.undo"),
         Binding("ctrl+y,Z", "redo", "Redo", show=False, id="tuner.redo"),
+        Binding("h", "headings", "Headings: steepest face from every direction", show=False, id="tuner.headings"),
         Binding("f1,question_mark", "help", "Help", id="tuner.help"),
         Binding("q", "quit", "Quit", id="tuner.quit"),
     ]
@@ -402,6 +403,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
             ("Measure", "Scale readings to front bias, CG height and mu", self.action_measure),
             ("Course view", "Walk the rig over the setup's course", self.action_course),
             ("Plan", "Let the planner suggest a setup", self.action_plan),
+            ("Headings", "Steepest face from every direction; wheel loads", self.action_headings),
             ("Help", "Keys, chart, flags and cautions", self.action_help),
         ):
             yield SystemCommand(title, help_text, action)

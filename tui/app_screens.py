@@ -80,6 +80,16 @@ class ScreenActions:
         """Walk the rig over the setup's course (front and rear on different ground)."""
         self._push("slopetune.tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
 
+    def action_headings(self) -> None:
+        """Tip, wheel lift and hold angle at every heading across a face; brings a new heading back."""
+        def apply(setup: Optional[Setup]) -> None:
+            if setup is not None:
+                t = setup.terrain
+                self._replace_setup(setup, f"Heading {t.heading_deg:g}, slope {t.slope_deg:g} from the headings screen")
+
+        self._push("slopetune.tui.headings_screen", "HeadingsScreen", lambda cls: cls(self.setup), apply,
+                   "the headings screen")
+
     def action_plan(self) -> None:
         """Let the planner suggest a setup; apply it if accepted."""
         before = self.setup

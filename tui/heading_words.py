@@ -15,8 +15,8 @@ if TYPE_CHECKING:
 
 WHEEL_WORDS = {"front_left": "front left", "front_right": "front right", "rear_left": "rear left",
                "rear_right": "rear right"}
-LIMIT_SHORT = {"none": "-", "tip": "tips", "lift": "axle lifts", "slide": "slides sideways",
-               "crab": "crabs, lets go", "slip": "slips"}
+LIMIT_SHORT = {"none": "-", "tip": "tips over", "lift": "an axle lifts", "slide": "slides sideways",
+               "crab": "crabs and lets go", "slip": "slips"}
 LIMIT_LONG = {
     "none": "nothing stops it below 90",
     "tip": "it tips over sideways",
@@ -50,6 +50,17 @@ def heading_label(deg: float) -> str:
     return f"{'diagonal up' if abs(w) < 90 else 'diagonal down'}, {side}"
 
 
+def heading_label_short(deg: float) -> str:
+    """`heading_label` in at most 16 cells."""
+    w = wrap_heading(deg)
+    if w in (0.0, 180.0):
+        return heading_label(w)
+    side = "left" if w > 0 else "right"
+    if abs(w) == 90:
+        return f"across, {side} up"
+    return f"{'up' if abs(w) < 90 else 'down'}, {side} high"
+
+
 def heading_text(deg: float, units: Units) -> str:
     w = wrap_heading(deg)
     return f"{w:+g}{units.deg}" if w not in (0.0, 180.0) else f"{w:g}{units.deg}"
@@ -75,14 +86,15 @@ def light_wheel_line(hs: HeadingSweep, units: Units) -> str:
     return f"Light wheel: {light[0]}, {units.force(low)}"
 
 
-def here_line(setup, units: Units) -> str:
-    """What the rig does at the setup's own slope and heading (steady), in words."""
+def here_line(setup, units: Units, short: bool = False) -> str:
+    """What the rig does at the setup's own slope and heading (steady), in words (`short`: under
+    78 cells, without the slope and heading, which the screen's title shows)."""
     from slopetune.engine.heading_sweep import LIMITS, PlaneModel, plane_pose
     from slopetune.engine.traction import STATES
 
     model = PlaneModel(setup)
     slope, heading = plane_pose(setup.terrain.slope_deg, setup.terrain.heading_deg)
-    where = f"At {slope:g}{units.deg}, heading {heading_text(heading, units)}"
+    where = "Here" if short else f"At {slope:g}{units.deg}, heading {heading_text(heading, units)}"
     code = LIMITS[int(model.classify(slope, heading))]
     if code != "none":
         return f"{where}: {LIMIT_LONG[code]}"
@@ -90,8 +102,8 @@ def here_line(setup, units: Units) -> str:
     state = STATES[int(st)]
     if state in ("front", "rear"):
         other = "rear" if state == "front" else "front"
-        crab = "; it crabs downhill" if float(t) > 0 else ""
-        return f"{where}: holds its line, the {state} scrubs and the {other} grips{crab}"
+        crab = " and crabs downhill" if float(t) > 0 else ""
+        return f"{where}: holds its line; the {state} scrubs{crab}, the {other} grips"
     return f"{where}: holds its line, both axles grip"
 
 
@@ -116,20 +128,28 @@ def _runs(mask: list[bool], headings: list[float]) -> list[tuple[float, float]]:
     return out
 
 
-def summary_lines(hs: HeadingSweep, units: Units) -> list[str]:
-    """The worst heading, the best line up the face and which headings hold the setup's slope."""
+def summary_lines(hs: HeadingSweep, units: Units, short: bool = False) -> list[str]:
+    """The worst heading, the best line up the face and which headings hold the setup's slope
+    (`short`: a line each within 78 cells, for the tuner)."""
     from slopetune.engine.heading_sweep import LIMITS
 
     d = units.deg
+    words = LIMIT_SHORT if short else LIMIT_LONG
+    label = heading_label_short if short else heading_label
     out = []
     w = hs.worst()
-    out.append(f"Worst heading: {heading_text(hs.heading_deg[w], units)} ({heading_label(hs.heading_deg[w])}), "
-               f"holds only to {hs.hold_deg[w]:.1f}{d}: {LIMIT_LONG[LIMITS[hs.hold_limit[w]]]}")
+    h = heading_text(hs.heading_deg[w], units)
+    if short:
+        out.append(f"Worst {h} ({label(hs.heading_deg[w])}): holds to {hs.hold_deg[w]:.1f}{d}, then "
+                   f"{words[LIMITS[hs.hold_limit[w]]]}")
+    else:
+        out.append(f"Worst heading: {h} ({label(hs.heading_deg[w])}), holds only to {hs.hold_deg[w]:.1f}{d}: "
+                   f"{words[LIMITS[hs.hold_limit[w]]]}")
     b = hs.best_climb()
     if b is not None:
-        out.append(f"Best line up the face: {heading_text(hs.heading_deg[b], units)} "
-                   f"({heading_label(hs.heading_deg[b])}), holds to {hs.hold_deg[b]:.1f}{d}, then "
-                   f"{LIMIT_LONG[LIMITS[hs.hold_limit[b]]]}")
+        lead = "Best line up:" if short else "Best line up the face:"
+        out.append(f"{lead} {heading_text(hs.heading_deg[b], units)} ({label(hs.heading_deg[b])}), "
+                   f"holds to {hs.hold_deg[b]:.1f}{d}, then {words[LIMITS[hs.hold_limit[b]]]}")
     slope = hs.slope_deg
     heads = [wrap_heading(h) for h in hs.heading_deg.tolist()]
     ok = [bool(v >= abs(slope)) for v in hs.hold_deg]
@@ -138,7 +158,8 @@ def summary_lines(hs: HeadingSweep, units: Units) -> list[str]:
     elif all(ok):
         out.append(f"At {slope:g}{d} it holds its line at every heading")
     else:
-        runs = ", ".join(f"{a:+g}..{b_:+g}" if a != b_ else f"{a:+g}" for a, b_ in _runs(ok, heads))
+        runs = ", ".join(f"{a:+g}" if a == b_ else f"{a:+g}..{b_:+g}" if a < b_ else f"{a:+g}..180..{b_:+g}"
+                         for a, b_ in _runs(ok, heads))
         out.append(f"At {slope:g}{d} it holds its line at headings {runs}{d}")
     return out
 
@@ -149,3 +170,23 @@ def margins_line(hs: HeadingSweep, units: Units) -> str:
 
     parts = sorted(zip(hs.margins_deg.tolist(), EDGES))
     return "Tip margin: " + ", ".join(f"{m:.1f}{units.deg} before the {e} wheels lift" for m, e in parts[:2])
+
+
+def light_wheel_short(hs: HeadingSweep, units: Units) -> str:
+    """The light wheel in a few words, for the top view (about 26 cells)."""
+    from slopetune.engine.off_camber import WHEELS
+
+    if bool(hs.wheels.tipped):
+        return "TIPPED: over the edge"
+    lifted = int(hs.wheels.lifted)
+    if lifted >= 0:
+        return f"Lifted: {WHEEL_WORDS[WHEELS[lifted]]}"
+    loads = [float(v) for v in hs.wheels.as_array()]
+    low = min(loads)
+    light = [WHEEL_WORDS[WHEELS[i]] for i in range(4) if loads[i] - low < 0.5]
+    if len(light) == 2:
+        a, b = light[0].split(), light[1].split()
+        pair = a[0] if a[0] == b[0] else a[1] if a[1] == b[1] else None
+        if pair:
+            return f"Light: both {pair}"
+    return f"Light: {light[0]} wheel"

@@ -18,7 +18,8 @@ from slopetune.engine.setup_model import cross_field_problems
 from ..units import Units
 
 # Fine steps per quantity, metric; the coarse step is ten of them.
-STEPS = {"mass": 5.0, "length": 1.0, "pct": 0.5, "deg": 1.0, "mu": 0.05, "rr": 0.01, "teeth": 1, "accel": 0.05}
+STEPS = {"mass": 5.0, "length": 1.0, "pct": 0.5, "deg": 1.0, "mu": 0.05, "rr": 0.01, "teeth": 1, "accel": 0.05,
+         "heading": 5.0}
 COARSE = 10
 LOAD_CHOICES = ("climb", "none")
 LOAD_WORDS = {"climb": "steady climb", "none": "coast, no load"}  # 14 cells: fits the form
@@ -69,6 +70,7 @@ def build_rows(setup: Setup) -> list[Row]:
     """Every row of the form for `setup`, in screen order (slope first: it is tuned most)."""
     rows = [Row("heading", "Terrain"),
             Row("number", "slope", "terrain.slope_deg", "deg"),
+            Row("number", "heading", "terrain.heading_deg", "heading"),
             Row("number", "throttle accel", "terrain.accel_g", "accel"),
             Row("load", "load", "terrain.load"),
             Row("heading", "Rig"),
@@ -187,6 +189,9 @@ def step(setup: Setup, row: Row, count: int) -> Edit:
     size = STEPS[row.quantity]
     if row.quantity == "teeth":
         return _checked(setup, row.key, int(old) + int(size) * count)
+    if row.quantity == "heading":  # round the circle: past +180 comes -175
+        turned = (old + size * count + 180.0) % 360.0 - 180.0
+        return _checked(setup, row.key, _round(180.0 if turned == -180.0 else turned))
     return _checked(setup, row.key, _round(old + size * count))
 
 
