@@ -85,7 +85,8 @@ class ScreenActions:
         def apply(setup: Optional[Setup]) -> None:
             if setup is not None:
                 t = setup.terrain
-                self._replace_setup(setup, f"Heading {t.heading_deg:g}, slope {t.slope_deg:g} from the headings screen")
+                self._replace_setup(setup, f"Heading {t.heading_deg:g}, slope {t.slope_deg:g} from the headings screen",
+                                    what="headings screen")
 
         self._push("slopetune.tui.headings_screen", "HeadingsScreen", lambda cls: cls(self.setup), apply,
                    "the headings screen")
