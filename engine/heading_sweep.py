@@ -89,6 +89,10 @@ class PlaneModel:
         self.stiffness = setup.grip.axle_stiffness() if hasattr(setup.grip, "axle_stiffness") else (np.inf, np.inf)
         self.od = setup_overdrive(setup)
         self.setup = setup
+        from . import analysis
+
+        make_ratio = getattr(analysis, "speed_ratio_of", None)  # K under load (roll-out diameters)
+        self._ratio = make_ratio(setup) if make_ratio is not None else None
 
     # ----- pieces
 
@@ -103,11 +107,8 @@ class PlaneModel:
 
     def speed_ratio(self, front_g, rear_g):
         """``K`` (``ρ = 1`` on a plane): the driveline's front/rear tyre speed ratio at these loads."""
-        from . import analysis
-
-        hook = getattr(analysis, "speed_ratio_at", None)
-        if hook is not None:
-            return hook(self.setup, front_g, rear_g)
+        if self._ratio is not None:
+            return self._ratio(front_g, rear_g)
         return np.full(np.shape(front_g), self.od.ratio)
 
     def traction(self, slope_deg, heading_deg, only_needed: bool = False):

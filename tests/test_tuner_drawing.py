@@ -81,7 +81,8 @@ def test_stepping_the_slope_runs_no_plotext_but_other_values_do(tmp_path):
             await pilot.pause()
             assert app.chart.data.slope_deg == 36 and app.chart.builds == builds
             assert "36\u00b0" in app.chart.render().plain  # the legend follows
-            await pilot.press("down", "down", "down", "right")  # the mass: new curves, plotext again
+            assert app.form.focus_key("rig.mass_g")
+            await pilot.press("right")  # the mass: new curves, plotext again
             await pilot.pause()
             assert app.setup.rig.mass_g == 2385
             await pilot.pause()
