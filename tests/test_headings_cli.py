@@ -62,3 +62,20 @@ def test_bad_heading_in_the_file_names_the_line(tmp_path, capsys):
     assert main(["headings", str(f)]) == 2
     err = capsys.readouterr().err
     assert "terrain.heading_deg = 270" in err and "bad.toml:" in err
+
+
+def test_heading_and_roll_share_save_and_read_back(tmp_path):
+    """The writer adds the new keys to a file that lacks them and reads them back (no data lost)."""
+    from slopetune.engine import load_setup
+    from slopetune.tui.setup_writer import save_setup
+
+    f = tmp_path / "old.toml"
+    f.write_text("\n".join(line for line in DEMO.read_text().splitlines()
+                           if not line.startswith("heading_deg") and "slopetune headings" not in line))
+    loaded = load_setup(f)
+    assert loaded.setup.terrain.heading_deg == 0.0 and loaded.setup.rig.roll_stiffness_front_pct is None
+    changed = loaded.setup.with_value("terrain.heading_deg", -35.0).with_value("rig.roll_stiffness_front_pct", 60.0)
+    save_setup(loaded, changed, f)
+    again = load_setup(f).setup
+    assert again.terrain.heading_deg == -35.0 and again.rig.roll_stiffness_front_pct == 60.0
+    assert "brass front knuckles" in f.read_text()  # the rest of the file is kept

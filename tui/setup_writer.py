@@ -179,6 +179,7 @@ def render_setup(loaded: Optional[LoadedSetup], setup: Setup) -> str:
     for key in ("mass_g", "wheelbase_mm", "front_bias_pct", "cg_height_mm", "track_mm",
                 "tire_dia_front_mm", "tire_dia_rear_mm"):
         _put(rig, key, getattr(setup.rig, key))
+    _put(rig, "roll_stiffness_front_pct", setup.rig.roll_stiffness_front_pct)  # None: by axle load
     _merge_ballast(rig, setup.rig.ballast)
 
     dl = _section(doc, "driveline")
@@ -208,6 +209,7 @@ def render_setup(loaded: Optional[LoadedSetup], setup: Setup) -> str:
     _put(terrain, "slope_deg", t.slope_deg)
     _optional(terrain, "accel_g", t.accel_g, 0.0)
     _optional(terrain, "load", t.load, "climb")
+    _optional(terrain, "heading_deg", t.heading_deg, 0.0)
 
     if setup.course is not None and "course" not in doc:
         c = tomlkit.table()
