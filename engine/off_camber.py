@@ -295,3 +295,52 @@ def wheel_lift_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, track_mm, 
         wheel = np.where(tie & (lo == i) & (hi == j), code, wheel)
     none = ~np.isfinite(angle) | (angle >= 90.0)
     return np.where(none, np.nan, angle), np.where(none, -1, wheel).astype(np.int8)
+
+
+@dataclass(frozen=True)
+class AlongHeading:
+    """The planar sweep's inputs along a heading (MODEL section 8), for `analysis`'s hook."""
+
+    front_g: np.ndarray
+    rear_g: np.ndarray
+    required_g: np.ndarray
+    mu_front: tuple  # (μ'_s, μ'_k): the planar scalars unchanged where nothing goes sideways
+    mu_rear: tuple
+    side_demand: np.ndarray  # t = tan β |sin ψ|
+    slides: np.ndarray  # t >= min μ_s: the rig slides sideways
+    rolls: np.ndarray  # the gravity line has crossed a side edge: rolled over
+
+    def state_codes(self, state, both_code: int, lifted_code: int) -> np.ndarray:
+        """Traction codes with a sideways slide as `both` and a roll-over as `lifted`."""
+        out = np.where(self.slides, both_code, state)
+        return np.where(self.rolls, lifted_code, out).astype(np.int8)
+
+
+def along_heading(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, track_mm, slope_deg, heading_deg,
+                  rolling_resistance, accel_g, mu_front, mu_rear) -> AlongHeading:
+    """Axle loads, the load to carry and the friction the friction circle leaves, along a heading.
+
+    Parameters are those of `plane_axle_loads_g` and `plane_required_g` plus the track [mm] and
+    each axle's ``(μ_s, μ_k)``. A slope < 0 runs nose down along the same heading.
+
+    At ``sin ψ = 0`` (straight up or down) this is the planar model exactly, with the friction
+    scalars handed back untouched. Elsewhere each axle keeps ``sqrt(μ² − t²)`` along the heading
+    [2]_ (floored just above 0 so the slip solve stays well posed; `slides` marks where it is gone).
+    """
+    nf, nr = plane_axle_loads_g(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, slope_deg, heading_deg,
+                                accel_g)
+    f_req = plane_required_g(weight_g, slope_deg, heading_deg, rolling_resistance, accel_g)
+    t = side_demand(slope_deg, heading_deg)
+    nf, nr, f_req, t = np.broadcast_arrays(nf, nr, f_req, t)
+    _x, y = gravity_foot_mm(cg_from_rear_mm, cg_height_mm, slope_deg, heading_deg, accel_g)
+    rolls = np.broadcast_to(~(np.abs(y) < track_mm / 2), nf.shape)
+    if not np.any(t > 0):
+        no = np.zeros(nf.shape, dtype=bool)
+        return AlongHeading(nf, nr, f_req, tuple(mu_front), tuple(mu_rear), t, no, rolls)
+    slides = t >= min(mu_front[0], mu_rear[0]) - 1e-9
+
+    def circle(mu):
+        s, k = (np.maximum(friction_circle_mu(m, t), 1e-6) for m in mu)
+        return s, np.minimum(k, s)
+
+    return AlongHeading(nf, nr, f_req, circle(mu_front), circle(mu_rear), t, slides, rolls)

@@ -291,3 +291,22 @@ def test_slip_hold_agrees_with_the_scalar_reference(stiffness):
         want, what = ref.hold_deg(r, psi, lambda rig, b, p: ref.plane_state(rig, b, p, axles), step=0.5)
         assert hold[i] == pytest.approx(want, abs=0.02), psi
         assert LIMITS[int(limit[i])] == what, psi
+
+
+def test_along_heading_is_the_planar_model_at_heading_0_and_slides_and_rolls_across():
+    """The hook for the uniform-slope sweep: at ψ = 0 exactly the planar loads (Gillespie ch. 2)
+    with the friction untouched; at ψ = 90 a sideways slide from atan(min μ_s) (here atan 1.0 = 45°)
+    and a roll-over from the NHTSA angle atan(T/(2h)) = atan(100/100) = 45° for the round rig."""
+    slopes = np.arange(-89.0, 90.0, 1.0)
+    a = oc.along_heading(1000.0, 300.0, 150.0, 100.0, 200.0, slopes, 0.0, 0.02, 0.0, (1.0, 0.8), (0.9, 0.7))
+    th = np.radians(slopes)
+    assert np.allclose(a.front_g, 1000.0 * (150.0 * np.cos(th) - 100.0 * np.sin(th)) / 300.0)
+    assert np.allclose(a.required_g, 1000.0 * (np.sin(th) + 0.02 * np.cos(th)))
+    assert a.mu_front == (1.0, 0.8) and a.mu_rear == (0.9, 0.7) and not a.slides.any()
+    b = oc.along_heading(1000.0, 300.0, 150.0, 100.0, 250.0, np.array([41.0, 42.0, 51.0, 52.0]), 90.0, 0.0, 0.0,
+                         (1.0, 0.8), (0.9, 0.7))
+    assert b.slides.tolist() == [False, True, True, True]  # atan 0.9 = 41.99°
+    assert b.rolls.tolist() == [False, False, False, True]  # atan(125/100) = 51.34°
+    assert b.mu_rear[0][0] == pytest.approx(math.sqrt(0.81 - math.tan(math.radians(41.0)) ** 2))
+    codes = b.state_codes(np.zeros(4, dtype=np.int8), 3, 4)
+    assert codes.tolist() == [0, 3, 3, 4]
