@@ -11,7 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import assume, given
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from slopetune.engine import Driveline, Grip, Rig, Setup, Terrain, analyse, load_setup
@@ -20,6 +20,7 @@ from slopetune.engine.analysis import effective_rig
 from slopetune.engine.heading_sweep import LIMITS, PlaneModel, heading_sweep
 
 import reference_off_camber as ref
+from conftest import examples, rig_setups
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
@@ -310,3 +311,29 @@ def test_along_heading_is_the_planar_model_at_heading_0_and_slides_and_rolls_acr
     assert b.mu_rear[0][0] == pytest.approx(math.sqrt(0.81 - math.tan(math.radians(41.0)) ** 2))
     codes = b.state_codes(np.zeros(4, dtype=np.int8), 3, 4)
     assert codes.tolist() == [0, 3, 3, 4]
+
+
+@settings(max_examples=examples(15))
+@given(setup=rig_setups(), heading=st.floats(-180.0, 180.0), share=st.one_of(st.none(), st.floats(1.0, 99.0)),
+       stiffness=st.sampled_from([math.inf, 20.0, 6.5]))
+def test_any_valid_rig_gives_a_finite_consistent_sweep(setup, heading, share, stiffness):
+    """Drawn rigs (conftest): every heading has finite angles with hold <= tip and wheel lift <= tip,
+    the mirror headings agree, and the wheel loads at the file's pose sum to W cos β unless tipped
+    (statics, Gillespie ch. 2)."""
+    setup = replace(setup, rig=replace(setup.rig, roll_stiffness_front_pct=share),
+                    terrain=replace(setup.terrain, heading_deg=heading))
+    assume(stiffness > 3 * max(setup.grip.axle_mu()))
+    m = model(setup, stiffness)
+    headings = np.arange(0.0, 360.0, 30.0)
+    tip, _ = m.tip(headings)
+    lift, _ = m.wheel_lift(headings)
+    hold, limit = m.hold(headings)
+    assert np.all(np.isfinite(tip)) and np.all(np.isfinite(hold))
+    assert np.all(hold <= tip + 1e-9) and np.all(np.nan_to_num(lift, nan=90.0) <= tip + 1e-9)
+    mirror = (12 - np.arange(12)) % 12
+    assert np.allclose(hold, hold[mirror], atol=1e-9) and np.array_equal(limit, limit[mirror])
+    r = m.rig
+    beta = abs(setup.terrain.slope_deg)
+    wl = m.wheel_loads(beta, heading)
+    if not bool(wl.tipped):
+        assert float(np.sum(wl.as_array())) == pytest.approx(r.mass_g * math.cos(math.radians(beta)), rel=1e-9)
