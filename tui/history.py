@@ -30,12 +30,13 @@ class History:
         self.undone: list[Step] = []
         self._last_key: Optional[str] = None
         self._last_time = 0.0
+        self.clock = time.monotonic  # tests hand in a fixed clock
 
     def record(self, before: Setup, after: Setup, what: str, key: Optional[str] = None) -> None:
         """`before` became `after`; `key` (a setup key) lets quick repeats of it merge into one step."""
         if before == after:
             return
-        now = time.monotonic()
+        now = self.clock()
         if (key is not None and key == self._last_key and now - self._last_time < MERGE_GAP_S
                 and self.done and self.done[-1].after == before):
             self.done[-1] = self.done[-1]._replace(after=after)
