@@ -10,6 +10,8 @@ from __future__ import annotations
 import asyncio
 from pathlib import Path
 
+from rich.console import Console
+
 from slopetune.engine import load_setup
 from slopetune.tui.app import SlopeTuneApp
 from slopetune.tui.widgets.setup_form import SetupForm
@@ -17,6 +19,13 @@ from slopetune.tui.widgets.setup_form import SetupForm
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
 SIZE = (80, 24)
+
+
+def screen_text(app) -> str:
+    """The characters on the whole screen as the terminal would show them."""
+    console = Console(width=app.size.width, record=True, file=open("/dev/null", "w"), color_system=None)
+    console.print(app.screen._compositor.render_update(full=True))
+    return console.export_text()
 
 
 def run(coro):
@@ -151,5 +160,55 @@ def test_typing_into_a_text_field_replaces_its_value(tmp_path):
             await pilot.press("enter", "right", *" nose", "enter")
             await pilot.pause()
             assert app.setup.rig.ballast[0].name == "lead nose"
+
+    run(go())
+
+
+def test_rig_section_shows_the_rig_with_its_ballast_as_it_changes(tmp_path):
+    setup = load_setup(DEMO).setup
+    rig = setup.rig
+    # first moments of mass, by hand from the file's numbers (not the engine's sums)
+    mass = rig.mass_g + sum(b.mass_g for b in rig.ballast)
+    x = (rig.mass_g * rig.front_bias_pct / 100 * rig.wheelbase_mm + sum(b.mass_g * b.x_mm for b in rig.ballast)) / mass
+    z = (rig.mass_g * rig.cg_height_mm + sum(b.mass_g * b.z_mm for b in rig.ballast)) / mass
+
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            form = app.query_one(SetupForm)
+            shown = {key: float(form.value_text(key)) for key in
+                     ("mass_g", "front_bias_pct", "cg_height_mm", "cg_from_rear_mm")}
+            assert abs(shown["mass_g"] - mass) <= 0.5
+            assert abs(shown["front_bias_pct"] - 100 * x / rig.wheelbase_mm) <= 0.05
+            assert abs(shown["cg_height_mm"] - z) <= 0.5
+            assert abs(shown["cg_from_rear_mm"] - x) <= 0.5
+            form.focus_key("rig.ballast.0.mass_g")
+            await pilot.press("shift+right")  # +50 g of brass
+            await pilot.pause()
+            assert abs(float(form.value_text("mass_g")) - (mass + 50)) <= 0.5
+            assert float(form.value_text("front_bias_pct")) != shown["front_bias_pct"]
+
+    run(go())
+
+
+def test_page_keys_jump_by_section_and_ballast_names_show_in_full(tmp_path):
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            form = app.query_one(SetupForm)
+            seen = []
+            for _ in range(6):
+                await pilot.press("pagedown")
+                await pilot.pause()
+                seen.append(form.row.key or form.row.kind)
+            assert seen[:5] == ["rig.mass_g", "rig.ballast.0.name", "driveline.mode", "grip.mu_static", "name"]
+            await pilot.press("pageup", "pageup")
+            await pilot.pause()
+            assert form.row.key == "driveline.mode"
+            form.focus_key("rig.ballast.0.name")
+            await pilot.pause()
+            assert "brass front knuckles (" in screen_text(app)  # the demo's first item, not "brass front..."
 
     run(go())

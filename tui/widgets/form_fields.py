@@ -31,8 +31,10 @@ _STAGE_BASE_TEETH = 40
 class Row(NamedTuple):
     """One line of the form.
 
-    kind: "heading", "number", "text", "load", "drive_mode", "add_ballast", "add_stage", "info".
-    `key` is the setup's dotted key for values; `quantity` picks unit and step.
+    kind: "heading", "number", "text", "load", "drive_mode", "add_ballast", "add_stage", "info",
+    "derived" (the rig with its ballast, shown, not edited).
+    `key` is the setup's dotted key for values (for "derived", the name of the figure); `quantity`
+    picks unit and step.
     """
 
     kind: str
@@ -44,7 +46,7 @@ class Row(NamedTuple):
 
     @property
     def selectable(self) -> bool:
-        return self.kind not in ("heading", "info")
+        return self.kind not in ("heading", "info", "derived")
 
     @property
     def typeable(self) -> bool:
@@ -81,10 +83,16 @@ def build_rows(setup: Setup) -> list[Row]:
             Row("number", "track", "rig.track_mm", "length"),
             Row("number", "front tyre dia", "rig.tire_dia_front_mm", "length"),
             Row("number", "rear tyre dia", "rig.tire_dia_rear_mm", "length"),
+            # what every figure is computed for: the measured rig with its ballast
+            Row("derived", "= with ballast", "mass_g", "mass"),
+            Row("derived", "  front bias", "front_bias_pct", "pct"),
+            Row("derived", "  CG height", "cg_height_mm", "length"),
+            Row("derived", "  CG from rear", "cg_from_rear_mm", "length"),
             Row("heading", "Ballast")]
     for i, _item in enumerate(setup.rig.ballast):
         base = f"rig.ballast.{i}"
-        rows += [Row("text", f"#{i + 1} name", f"{base}.name", removable=True),
+        # the name row is "#1" alone: the name itself gets the width to tell items apart
+        rows += [Row("text", f"#{i + 1}", f"{base}.name", removable=True),
                  Row("number", f"#{i + 1} mass", f"{base}.mass_g", "mass", removable=True),
                  Row("number", f"#{i + 1} x from rear", f"{base}.x_mm", "length", removable=True),
                  Row("number", f"#{i + 1} z height", f"{base}.z_mm", "length", removable=True)]
@@ -305,7 +313,7 @@ def hint(row: Row, inherited: bool, typing: bool) -> Optional[str]:
     if row.optional:
         return "= common mu; step to set" if inherited else "Del: back to the common mu"
     if row.kind == "text":
-        return "Enter to edit" + (", Del removes the item" if row.removable else "")
+        return "Enter to edit" + (", Del removes it" if row.removable else "")
     if row.removable:
         return "Del removes this " + ("item" if row.key.startswith("rig.ballast") else "stage")
     if row.kind in ("add_ballast", "add_stage"):
@@ -315,8 +323,21 @@ def hint(row: Row, inherited: bool, typing: bool) -> Optional[str]:
     return None
 
 
+def with_ballast(setup: Setup) -> dict[str, float]:
+    """The rig that computes (measured rig plus ballast), by the engine's plain-Python sums:
+    {"mass_g", "front_bias_pct", "cg_height_mm", "cg_from_rear_mm"}. [g, %, mm, mm]"""
+    from slopetune.engine.ballast import combine_ballast  # no numpy: shown in the first frame
+
+    mass, x, z = combine_ballast(setup.rig)
+    return {"mass_g": mass, "front_bias_pct": 100.0 * x / setup.rig.wheelbase_mm, "cg_height_mm": z,
+            "cg_from_rear_mm": x}
+
+
 def shown_value(setup: Setup, row: Row, units: Units) -> tuple[str, str, bool]:
     """(value text, unit text, inherited) as the form shows them, in display units."""
+    if row.kind == "derived":
+        value = round(with_ballast(setup)[row.key], units.decimals(row.quantity))
+        return units.number(row.quantity, value), units.unit(row.quantity), False
     if row.kind == "load":
         return LOAD_WORDS[setup.terrain.load], "", False
     if row.kind == "drive_mode":

@@ -70,8 +70,8 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         Binding("delete,backspace", "remove", "Remove item / clear override", show=False, id="form.remove"),
         Binding("home", "jump(0)", "First field", show=False, id="form.first"),
         Binding("end", "jump(-1)", "Last field", show=False, id="form.last"),
-        Binding("pageup", "page(-1)", "Page of fields up", show=False, id="form.page_up"),
-        Binding("pagedown", "page(1)", "Page of fields down", show=False, id="form.page_down"),
+        Binding("pageup", "page(-1)", "Previous section", show=False, id="form.page_up"),
+        Binding("pagedown", "page(1)", "Next section", show=False, id="form.page_down"),
     ]
 
     class Edited(Message):
@@ -178,16 +178,20 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
     def _second(self, view: RowView) -> Optional[Text]:
         """The line under a row: the reason a value was refused (first), else the hint."""
         if view.error:
-            return Text(f"  ! {one_line(view.error)}", self._part("setup-form--error"))
+            return Text(f"! {one_line(view.error)}", self._part("setup-form--error"))
         if view.hint:
-            return Text(f"  {view.hint}", self._part("setup-form--hint"))
+            return Text(view.hint, self._part("setup-form--hint"))
         return None
 
-    def _height(self, view: RowView, width: int) -> int:
+    def _second_lines(self, view: RowView, width: int) -> list[Text]:
+        """The line under a row, wrapped: every line indented two cells under the row's label."""
         second = self._second(view)
         if second is None:
-            return 1
-        return 1 + len(second.wrap(self.app.console, max(width, 1)))
+            return []
+        return [Text("  ") + line for line in second.wrap(self.app.console, max(width - 2, 1))]
+
+    def _height(self, view: RowView, width: int) -> int:
+        return 1 + len(self._second_lines(view, width))
 
     def _redraw(self, full: bool = False) -> None:
         """Recompute every row's view; repaint the rows that changed (all when heights moved)."""
@@ -245,11 +249,11 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             if view.selected:
                 cursor = "setup-form--cursor" if self.has_focus else "setup-form--cursor-blurred"
                 base = base + self.get_component_rich_style(cursor)
-            text = self._first_line(self.rows[i], view, width) if sub == 0 else self._second(view)
             if sub == 0:
+                text = self._first_line(self.rows[i], view, width)
                 text.truncate(width, overflow="crop")
             else:
-                wrapped = text.wrap(self.app.console, max(width, 1))
+                wrapped = self._second_lines(view, width)
                 # a resize can draw before the rows are laid out again: a stale line is blank
                 text = wrapped[sub - 1] if sub - 1 < len(wrapped) else Text("")
             strip = text_strip(text, width, base, self.app.console)
@@ -273,6 +277,8 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             text.append(f"{mark}{v.text}")
             return text
         label_w = 15 if width >= 28 else max(8, width // 2)
+        if row.kind == "text":
+            label_w = min(label_w, len(v.text) + 2)  # names and notes get the rest of the line
         text.append(f"{mark}{one_line(v.text)[:label_w - 1]:<{label_w - 1}} ")
         room = max(width - label_w - 1, 4)
         if v.editing is not None:
@@ -285,13 +291,14 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
             value = one_line(v.value)
             shown = value if len(value) <= room else value[: max(room - 3, 1)] + "..."
             text.append(shown, style("setup-form--value"))
-        elif row.kind != "number":
+        elif row.kind not in ("number", "derived"):
             text.append(f"{v.value[:room]:>{room}}", style("setup-form--value"))
         else:
             unit = v.unit if v.unit in ("", "\u00b0") else f" {v.unit}"
             value_w = max(room - 4, 4)
             shown = f"={v.value}" if v.inherited else v.value
-            text.append(f"{shown:>{value_w}}", style("setup-form--inherited" if v.inherited else "setup-form--value"))
+            muted = v.inherited or row.kind == "derived"  # not the user's own number
+            text.append(f"{shown:>{value_w}}", style("setup-form--inherited" if muted else "setup-form--value"))
             text.append(unit, style("setup-form--unit"))
         return text
 
@@ -367,11 +374,23 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         self._move_to(self._first_selectable(1 if where == 0 else -1))
 
     def action_page(self, direction: int) -> None:
-        """A screenful of fields up or down."""
-        target = self.cursor
-        for _ in range(max(self.size.height - 2, 1)):
-            target = self._next_selectable(target, direction)
+        """The next or previous section (Terrain, Rig, Ballast, Driveline, Grip, ...): its first field."""
+        heads = [i for i, r in enumerate(self.rows) if r.kind == "heading"]
+        starts = [self._next_selectable(h, 1) for h in heads]  # each section's first field
+        if direction > 0:
+            later = [(h, s) for h, s in zip(heads, starts) if s > self.cursor and h > self.cursor - 1]
+            if not later:
+                return
+            head, target = later[0]
+        else:
+            earlier = [(h, s) for h, s in zip(heads, starts) if s < self.cursor]
+            if not earlier:
+                return
+            head, target = earlier[-1]
         self._move_to(target)
+        if self._starts and head < len(self._starts):
+            # the section's heading on the top line: as much of the section in sight as fits
+            self.call_after_refresh(self.scroll_to, y=self._starts[head], animate=False)
 
     def action_step(self, count: int) -> None:
         """Step the value by `count` fine steps."""
