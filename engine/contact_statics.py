@@ -1,323 +1,347 @@
-"""Two-contact statics: front and rear tyres on ground of different angles (crests, ledges, edges).
+"""Two-contact statics with tyre slip: front and rear tyres on ground of different angles.
 
-Planar, quasi-static rigid body. Each axle is one contact ``i`` with surface angle ``α_i``,
-normal ``n_i = (−sin α_i, cos α_i)`` and tangent ``t_i = (cos α_i, sin α_i)`` (x forward, z up).
-The ground pushes on contact ``i`` with ``N_i n_i + F_i t_i``; rolling resistance adds
-``−c_rr N_i t_i`` (it opposes travel, like the ``c_rr cos θ`` term of a uniform climb). Weight
-``W`` acts down at the CG and the inertia force ``W a_x`` acts at the CG against the chassis
-direction ``(cos φ, sin φ)``.
+Planar, quasi-static rigid body. Each axle is one contact ``i`` at point ``P_i`` with surface angle
+``α_i``, normal ``n_i = (−sin α_i, cos α_i)`` and tangent ``t_i = (cos α_i, sin α_i)`` (x forward,
+z up). The ground pushes on contact ``i`` with ``N_i n_i + (F_i − c_rr N_i) t_i``: the tyre's
+longitudinal force ``F_i`` less rolling resistance. Weight ``W`` acts down at the CG and the
+inertia force ``W a_x`` at the CG against the chassis direction ``(cos φ, sin φ)``.
 
-Four unknowns ``N_f, F_f, N_r, F_r`` and three equilibrium equations (Σx, Σz, Σ moments about
-the CG); the slip state of the driveline supplies the fourth (``F = ±μ N`` on one axle), so each
-candidate state is a 3×3 linear system. All candidates lie on one line of equilibrium solutions,
-so one 3×3 system per position (with two right-hand sides: a point on the line and its
-direction, solved for every position at once with ``numpy.linalg.solve`` on stacked matrices)
-gives every candidate in closed form.
+Tyre force (brush model, parabolic pressure [1]_): ``F_i = μ_s,i N_i ψ(λ_i)`` with
+``λ_i = c_i σ_i/(3 μ_s,i)``, ``σ_i = 1 − 1/s_i``; ``|λ_i| >= 1``: the patch slides and carries
+``±μ_k,i N_i``. The driveline fixes ``s_f = [K s_r + (g − 1) r_f dφ/ds_r]/ρ`` (``ρ`` the path
+ratio of the two centres, the second term the chassis pitching the axle housings).
 
-Which candidate holds (Coulomb wind-up): the equilibrium solutions form a line, and moving along
-it with the fast-axle force ``P = F_fast`` is the wind-up pair growing. The fast axle meets its
-static limit at ``P_A = F_fast(A)`` (candidate A: ``F_fast = +μ_s N_fast``), the slow axle at
-``P_B = F_fast(B)`` (candidate B: ``F_slow = −μ_s N_slow``); the smaller one lets go first. On a
-uniform slope ``P_A = μ_s,fast N_fast`` and ``P_B = F_req + μ_s,slow N_slow``, which is exactly
-`engine.traction.fast_slips_first`. On ground of two angles the pair also changes the normal
-forces (a tyre pushed into a step edge presses harder on it), so an axle whose margin to its
-limit grows with the pair never reaches it; the direction of the line says which margins
-shrink. If neither does, the rig is wedged: the driveline binds, nothing slips, and the
-equal-share split below is reported. The axle that lets go then carries ``μ_k N``
-(candidates C, D) and the other must stay within ``μ_s N``; otherwise both slip.
+Unknowns ``N_f, N_r, s_r``. Because each tyre force is ``N_i`` times a function of its own slip,
+for a given ``s_r`` moments about the rear contact are one linear equation in ``N_f`` and moments
+about the front contact one in ``N_r`` [2]_; the force balance along the chord between the two
+contacts is the residual in ``s_r`` (the balance across the chord follows from the two moment
+equations). On a uniform slope the residual is ``F_f + F_r − F_req`` and the normal forces are
+the grade-load equations [3]_, so this reduces exactly to the uniform-slope solve.
 
-With no overdrive there is no wind-up: the split is the one where both axles use the same share
-``s`` of their static grip (``F_i = s μ_s,i N_i``; on a uniform slope the grip-proportional split
-of `engine.traction.traction_state`). ``s`` is the root of a quadratic along the line, and the
-rig holds while ``|s| <= 1``. That same split is the "no wind-up" reference for ``windup_g``.
+The residual is scanned on a grid of ``s_r`` spanning every saturation point (beyond them it is
+constant) and the first upward sign change with positive normal forces at both ends is bisected
+on arrays, all positions at once. Monotonicity is not proven on uneven ground, so the normal
+forces are checked: where the only sign change is a pole (a tyre pushed into a step so that the
+wind-up presses it down harder than it pushes it along: the normal force runs to infinity) no
+finite forces balance the rig and the driveline **binds**. Then, as in the uniform-slope onset
+solve: an axle at ``|λ| >= 1`` lets go with ``±μ_k N`` and the other must carry the rest within
+``μ_s N`` on its own brush curve, else both slip; no root within the grip: both slip.
+
+Both axles rigid (stiffness ``inf``) is the Coulomb limit, solved exactly in
+`engine.contact_rigid` (four friction limits, ``binds`` where none is reached).
 
 References
 ----------
-.. [1] J. L. Meriam, L. G. Kraige, *Engineering Mechanics: Statics*, Wiley, ch. 3 (equilibrium
-   of a rigid body in two dimensions: three independent equations).
-.. [2] T. D. Gillespie, *Fundamentals of Vehicle Dynamics*, SAE, 1992, ch. 2 (axle loads on a
+.. [1] H. B. Pacejka, *Tire and Vehicle Dynamics*, 3rd ed., Butterworth-Heinemann, 2012, ch. 3
+   (brush model, theoretical slip, parabolic pressure, saturation at full sliding).
+.. [2] J. L. Meriam, L. G. Kraige, *Engineering Mechanics: Statics*, Wiley, ch. 3 (planar
+   equilibrium: moments about two points and one force balance are independent).
+.. [3] T. D. Gillespie, *Fundamentals of Vehicle Dynamics*, SAE, 1992, ch. 2 (axle loads on a
    grade, rolling resistance, traction-limited climbing).
-.. [3] Serway & Beichner, *Physics for Scientists and Engineers*, 5th ed., ch. 5 (Coulomb static
-   and kinetic friction).
-.. [4] J. Y. Wong, SAE 700723, 1970 (a front/rear speed mismatch is carried as driveline
-   wind-up).
+.. [4] SAE J670, *Vehicle Dynamics Terminology* (longitudinal slip ratio).
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
-from typing import Optional
 
 import numpy as np
 
-from .traction import BOTH, FRONT, LIFTED, NONE, REAR, TractionState
+from .contact_rigid import BINDS, contact_columns, load_vector, solve_rigid
+from .traction import BOTH, FRONT, LIFTED, NONE, REAR
+from .tyre_brush import brush_psi, brush_psi_inverse
 
-# A 3×3 system whose determinant is below this share of its column scale has no unique solution.
-_SINGULAR_REL = 1e-12
+# An axle given as rigid beside one with a finite stiffness is solved with this stiffness: its
+# linear range (3μ/c in σ) is then below the bisection's resolution.
+NEAR_RIGID = 1e9
+_GRID = 17  # residual samples across the bracket
+_BISECT = 48  # halvings of the bracket cell; a secant step on the last cell finishes it
+
+
+@dataclass(frozen=True)
+class CourseTraction:
+    """Per-position traction result; every field has the shape of the positions."""
+
+    state: np.ndarray  # codes into engine.traction.STATES ("binds" included)
+    front_force_g: np.ndarray  # tyre force along each contact's tangent, + forward [gf]
+    rear_force_g: np.ndarray
+    windup_g: np.ndarray  # fast axle's force above its grip-proportional share [gf]
+    reserve_g: np.ndarray  # static grip left on the gripping axle(s); negative: short by that
+    front_slip_pct: np.ndarray  # κ = s − 1 in % (SAE J670 [4]_); NaN sliding, lifted or bound
+    rear_slip_pct: np.ndarray
+    front_grip_used: np.ndarray  # |F|/(μ_s N); 1 on a sliding axle; NaN lifted or bound
+    rear_grip_used: np.ndarray
 
 
 @dataclass(frozen=True)
 class ContactLoads:
     """Per-position result; every array has the shape of the positions."""
 
-    front_normal_g: np.ndarray  # [gf]; <= 0 where the front is off the ground
+    front_normal_g: np.ndarray  # [gf]
     rear_normal_g: np.ndarray
-    traction: TractionState  # state codes into engine.traction.STATES and ground forces [gf]
+    traction: CourseTraction
 
 
-def _cross(r, f):
-    """z-component of the planar cross product ``r × f`` (moment of `f` applied at `r`)."""
-    return r[..., 0] * f[..., 1] - r[..., 1] * f[..., 0]
+def _cross(a, b):
+    return a[..., 0] * b[..., 1] - a[..., 1] * b[..., 0]
 
 
-def contact_columns(front_arm_mm, rear_arm_mm, front_angle_deg, rear_angle_deg, rolling_resistance=0.0):
-    """Columns of the equilibrium equations for the unknowns ``N_f, F_f, N_r, F_r``.
-
-    Parameters
-    ----------
-    front_arm_mm, rear_arm_mm : array_like, shape (..., 2)
-        Contact point minus CG, (x forward, z up). [mm]
-    front_angle_deg, rear_angle_deg : array_like, shape (...)
-        Surface angle at each contact, nose-up positive. [deg]
-    rolling_resistance : float, default 0
-        Rolling-resistance coefficient ``c_rr``. [-]
-
-    Returns
-    -------
-    ndarray, shape (..., 4, 3)
-        Rows ``N_f, F_f, N_r, F_r``; each row is (Σx, Σz, Σ moment about the CG) per unit of that
-        unknown [1]_. [-, -, mm]
-    """
-    cols = []
-    for arm, ang in ((front_arm_mm, front_angle_deg), (rear_arm_mm, rear_angle_deg)):
-        arm = np.asarray(arm, dtype=float)
-        a = np.radians(np.asarray(ang, dtype=float))
-        t = np.stack((np.cos(a), np.sin(a)), axis=-1)
-        n = np.stack((-np.sin(a), np.cos(a)), axis=-1) - rolling_resistance * t
-        for v in (n, t):
-            cols.append(np.concatenate((v, _cross(arm, v)[..., None]), axis=-1))
-    return np.stack(cols, axis=-2)
+def _dot(a, b):
+    return a[..., 0] * b[..., 0] + a[..., 1] * b[..., 1]
 
 
-def load_vector(weight_g, pitch_deg, accel_g=0.0):
-    """Right-hand side: what the contact forces must balance. [gf, gf, gf·mm]
-
-    ``(W a_x cos φ, W (1 + a_x sin φ), 0)``: weight and the inertia of a throttle acceleration
-    along the chassis; neither has a moment about the CG.
-    """
-    phi = np.radians(np.asarray(pitch_deg, dtype=float))
-    return np.stack(
-        (weight_g * accel_g * np.cos(phi), weight_g * (1.0 + accel_g * np.sin(phi)), np.zeros_like(phi)),
-        axis=-1,
-    )
+def _unit(angle_rad):
+    return np.stack((np.cos(angle_rad), np.sin(angle_rad)), axis=-1)
 
 
-def _det3(a, b, c):
-    """Determinant of the 3×3 matrices with columns a, b, c (each shape (..., 3))."""
-    return (a[..., 0] * (b[..., 1] * c[..., 2] - b[..., 2] * c[..., 1])
-            - a[..., 1] * (b[..., 0] * c[..., 2] - b[..., 2] * c[..., 0])
-            + a[..., 2] * (b[..., 0] * c[..., 1] - b[..., 1] * c[..., 0]))
+class _Pose:
+    """The pose's equations, reduced to a few numbers per position."""
+
+    def __init__(self, weight_g, front_contact, rear_contact, cg, front_angle_deg, rear_angle_deg,
+                 pitch_deg, rolling_resistance, accel_g):
+        af, ar = np.radians(front_angle_deg), np.radians(rear_angle_deg)
+        phi = np.radians(pitch_deg)
+        self.tf, self.tr = _unit(af), _unit(ar)
+        self.nf, self.nr = _unit(af + math.pi / 2), _unit(ar + math.pi / 2)
+        self.crr = rolling_resistance
+        d = front_contact - rear_contact
+        e = d / np.hypot(d[..., 0], d[..., 1])[..., None]
+        self.load = np.stack((-weight_g * accel_g * np.cos(phi), -weight_g * (1.0 + accel_g * np.sin(phi))), -1)
+        c = rolling_resistance
+        self.af, self.bf = _cross(d, self.nf) - c * _cross(d, self.tf), _cross(d, self.tf)
+        self.ar, self.br = _cross(d, self.nr) - c * _cross(d, self.tr), _cross(d, self.tr)
+        self.mom_r = -_cross(cg - rear_contact, self.load)  # drives N_f
+        self.mom_f = _cross(cg - front_contact, self.load)  # drives N_r
+        self.enf, self.etf, self.enr, self.etr = _dot(e, self.nf), _dot(e, self.tf), _dot(e, self.nr), _dot(e, self.tr)
+        self.el = _dot(e, self.load)
+
+    def normals(self, mf, mr, at=(...,)):
+        """``N_f``, ``N_r`` for force-to-load ratios ``m_f``, ``m_r`` (moments about each contact)."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            nf = self.mom_r[at] / (self.af[at] + mf * self.bf[at])
+            nr = self.mom_f[at] / (self.ar[at] + mr * self.br[at])
+        return nf, nr
+
+    def residual(self, mf, mr, at=(...,)):
+        """Force balance along the chord [gf] and the normal forces, for ratios ``m_f``, ``m_r``."""
+        nf, nr = self.normals(mf, mr, at)
+        c = self.crr
+        with np.errstate(invalid="ignore"):
+            res = (nf * (self.enf[at] + (mf - c) * self.etf[at]) + nr * (self.enr[at] + (mr - c) * self.etr[at])
+                   + self.el[at])
+        return res, nf, nr
+
+    def one_sliding(self, front_slides, m_slide):
+        """One axle at ratio `m_slide`, the other carrying the rest: ``N_f, N_r, F_other``."""
+        nf_s, nr_s = self.normals(m_slide, m_slide)
+        n_s = np.where(front_slides, nf_s, nr_s)
+        v_s = np.where(front_slides[..., None], self.nf + (m_slide - self.crr)[..., None] * self.tf,
+                       self.nr + (m_slide - self.crr)[..., None] * self.tr)
+        rest = -(n_s[..., None] * v_s + self.load)
+        n_o_dir = np.where(front_slides[..., None], self.nr, self.nf)
+        t_o_dir = np.where(front_slides[..., None], self.tr, self.tf)
+        n_o = _dot(rest, n_o_dir)  # (n − c t)·n = 1, t·n = 0
+        f_o = _dot(rest, t_o_dir) + self.crr * n_o
+        return np.where(front_slides, n_s, n_o), np.where(front_slides, n_o, n_s), f_o
 
 
-def _order(fast, k_vals, o_vals):
-    """(N_f, F_f, N_r, F_r) from the fast axle's (N, F) and the slow axle's (N, F)."""
-    return np.stack((*k_vals, *o_vals) if fast == "front" else (*o_vals, *k_vals), axis=-1)
-
-
-def equilibrium_line(columns, rhs, fast="front"):
-    """Every force set that keeps the rig in equilibrium: ``x(P) = base + P · direction``.
-
-    Parameters
-    ----------
-    columns : ndarray, shape (..., 4, 3)
-        From `contact_columns`.
-    rhs : ndarray, shape (..., 3)
-        From `load_vector`.
-    fast : {"front", "rear"}
-        The axle whose ground force is the parameter ``P`` (the overdriven one).
-
-    Returns
-    -------
-    base, direction : ndarray, shape (..., 4)
-        ``(N_f, F_f, N_r, F_r)`` at ``P = 0`` [gf] and per unit of ``P`` [-]. NaN where the
-        three equations do not fix the other three unknowns (the fast axle's normal force acts
-        straight through the other contact).
-
-    Notes
-    -----
-    One 3×3 system per position with two right-hand sides, solved with `numpy.linalg.solve` on
-    the stacked matrices: unknowns ``(N_fast, N_slow, F_slow)``; the right-hand sides are the
-    loads (``P = 0``) and minus the fast axle's tangential column (one unit of ``P``) [1]_.
-    """
-    k, o = (0, 2) if fast == "front" else (2, 0)
-    a, b, c = columns[..., k, :], columns[..., o, :], columns[..., o + 1, :]
-    m = np.stack((a, b, c), axis=-1)
-    det = _det3(a, b, c)
-    scale = np.sqrt((a * a).sum(-1) * (b * b).sum(-1) * (c * c).sum(-1))
-    bad = ~(np.abs(det) > _SINGULAR_REL * scale)
-    if bad.any():
-        m = np.where(bad[..., None, None], np.eye(3), m)
-    sol = np.linalg.solve(m, np.stack((rhs, -columns[..., k + 1, :]), axis=-1))
-    sol = np.where(bad[..., None, None], np.nan, sol)
-    zero, one = np.zeros(det.shape), np.ones(det.shape)
-    base = _order(fast, (sol[..., 0, 0], zero), (sol[..., 1, 0], sol[..., 2, 0]))
-    direction = _order(fast, (sol[..., 0, 1], one), (sol[..., 1, 1], sol[..., 2, 1]))
-    return base, direction
-
-
-def _where_ratio(base, direction, axle, coef):
-    """``P`` at which ``F_axle = coef · N_axle`` on the equilibrium line (inf/NaN: never)."""
-    i = 0 if axle == "front" else 2
-    n0, f0, dn, df = base[..., i], base[..., i + 1], direction[..., i], direction[..., i + 1]
+def _ratio(s, stiffness, mu_s):
+    """Force-to-load ratio ``μ_s ψ(λ)`` at wheel speed ratio `s` (``s <= 0``: full backward)."""
     with np.errstate(divide="ignore", invalid="ignore"):
-        return (coef * n0 - f0) / (df - coef * dn)
+        lam = np.where(s > 0, stiffness * (1.0 - 1.0 / np.where(s > 0, s, 1.0)) / (3.0 * mu_s), -np.inf)
+    return mu_s * brush_psi(lam), lam
 
 
-def _at(base, direction, p):
-    return base + np.asarray(p)[..., None] * direction
+def _slip_pct_from_ratio(m, stiffness, mu_s):
+    """κ [%] of a gripping tyre carrying force ratio `m` (inverse brush curve)."""
+    sigma = 3.0 * mu_s * brush_psi_inverse(np.clip(m / mu_s, -1.0, 1.0)) / stiffness
+    return 100.0 * sigma / (1.0 - sigma)
 
 
-def equal_share(base, direction, mu_front_static, mu_rear_static):
-    """The no-wind-up split: both axles at the same share ``s`` of their static grip.
-
-    Parameters
-    ----------
-    base, direction : ndarray, shape (..., 4)
-        The equilibrium line (`equilibrium_line`).
-    mu_front_static, mu_rear_static : float
-        Static friction of each axle. [-]
-
-    Returns
-    -------
-    s : ndarray
-        Share of static grip in use (``|s| > 1``: the rig cannot hold). [-] NaN where no such
-        split exists.
-    forces : ndarray, shape (..., 4)
-        ``(N_f, F_f, N_r, F_r)`` at that split. [gf]
-
-    Notes
-    -----
-    ``F_f/(μ_f N_f) = F_r/(μ_r N_r)`` with every force linear in ``P`` is a quadratic in ``P``.
-    Of its real roots the one with the smaller ``|s|`` is the physical one: on uniform ground the
-    quadratic term vanishes and ``s = F_req/(μ_f N_f + μ_r N_r)``, the grip-proportional split.
-    """
-    (a0, b0, c0, e0), (a1, b1, c1, e1) = np.moveaxis(base, -1, 0), np.moveaxis(direction, -1, 0)
-    mf, mr = mu_front_static, mu_rear_static
-    q2 = mr * c1 * b1 - mf * a1 * e1
-    q1 = mr * (c0 * b1 + c1 * b0) - mf * (a0 * e1 + a1 * e0)
-    q0 = mr * c0 * b0 - mf * a0 * e0
-    disc = q1 * q1 - 4.0 * q2 * q0
-    with np.errstate(invalid="ignore", divide="ignore"):
-        # numerically stable roots: q0/q stays finite as q2 -> 0 (uniform ground)
-        q = -0.5 * (q1 + np.copysign(np.sqrt(disc), q1))
-        roots = np.stack((q0 / q, q / q2), axis=-1)
-        pts = base[..., None, :] + roots[..., None] * direction[..., None, :]
-        shares = pts[..., 1] / (mf * pts[..., 0])
-    size = np.where(np.isfinite(shares), np.abs(shares), np.inf)
-    pick = np.argmin(size, axis=-1)
-    s = np.take_along_axis(shares, pick[..., None], -1)[..., 0]
-    s = np.where((disc >= 0) & np.isfinite(s), s, np.nan)
-    forces = np.take_along_axis(pts, pick[..., None, None], -2)[..., 0, :]
-    return s, forces
-
-
-def solve_contacts(weight_g, front_arm_mm, rear_arm_mm, front_angle_deg, rear_angle_deg, pitch_deg,
-                   mu_front, mu_rear, overdriven: Optional[str], rolling_resistance=0.0, accel_g=0.0):
-    """Normal and ground forces at both contacts, and the slip state, at many positions.
+def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_angle_deg, rear_angle_deg,
+                   pitch_deg, mu_front, mu_rear, stiffness_front, stiffness_rear, speed_ratio, pitch_term,
+                   path_ratio, rolling_resistance=0.0, accel_g=0.0) -> ContactLoads:
+    """Normal and tyre forces at both contacts, slips and the slip state, at many positions.
 
     Parameters
     ----------
     weight_g : float
         Rig weight. [gf]
-    front_arm_mm, rear_arm_mm : array_like, shape (..., 2)
-        Contact point minus CG, (x forward, z up). [mm]
-    front_angle_deg, rear_angle_deg : array_like, shape (...)
-        Surface angle at each contact; a step edge's is the direction of the edge-to-centre
-        normal. [deg]
-    pitch_deg : array_like, shape (...)
-        Chassis pitch (direction of the throttle acceleration). [deg]
+    front_contact_mm, rear_contact_mm, cg_mm : array_like, shape (n, 2)
+        Contact points and CG, (x forward, z up). [mm]
+    front_angle_deg, rear_angle_deg, pitch_deg : array_like, shape (n,)
+        Surface angle at each contact (a step edge's: the edge-to-centre normal's) and chassis
+        pitch. [deg]
     mu_front, mu_rear : tuple of float
         ``(μ_static, μ_kinetic)`` of each axle. [-]
-    overdriven : {"front", "rear", None}
-        The axle whose tyres want to run faster over the ground.
-    rolling_resistance : float, default 0
-        ``c_rr``. [-]
-    accel_g : float, default 0
-        Throttle acceleration along the chassis. [g]
+    stiffness_front, stiffness_rear : float
+        Slip stiffness per unit load ``c`` (``> 3 μ_s``), or ``math.inf`` for a rigid tyre. [-]
+    speed_ratio : array_like, shape (n,)
+        ``K``: front over rear circumferential speed (gears and rolling diameters). [-]
+    pitch_term : array_like, shape (n,)
+        ``(g − 1) r_f dφ/ds_r``, the housings' pitch as seen by the front wheel. [-]
+    path_ratio : array_like, shape (n,)
+        ``ρ = ds_f/ds_r``, > 0. [-]
+    rolling_resistance, accel_g : float
+        ``c_rr`` [-] and the throttle acceleration along the chassis [g].
 
     Returns
     -------
     ContactLoads
-        Normal forces and a `TractionState` with the same meaning as on a uniform slope: ground
-        forces along each contact's tangent [gf] (NaN when an axle is lifted), ``windup_g`` the
-        fast-axle force above the equal-share split, ``reserve_g`` the static grip left on the
-        gripping axle (with no overdrive: ``(1 − |s|)(μ_f N_f + μ_r N_r)``). ``lifted`` (an axle
-        with ``N <= 0`` in the state that applies, or forces the geometry cannot fix) outranks
-        every slip state. Where both axles slip the rig is not in equilibrium (it stalls or slides
-        back); the normal forces shown are those of the axle that let go first, the other axle's
-        force is clipped to ``μ_k N`` [3]_.
+        ``lifted`` (an axle with ``N <= 0``) outranks every other state. Where it binds the ground
+        forces, slips and grip used are NaN and the normal forces are those before the wind-up
+        builds (the grip-proportional split); where both slip the forces shown are ``±μ_k N``.
     """
-    if overdriven not in ("front", "rear", None):
-        raise ValueError(f"overdriven must be 'front', 'rear' or None, not {overdriven!r}")
-    cols = contact_columns(front_arm_mm, rear_arm_mm, front_angle_deg, rear_angle_deg, rolling_resistance)
-    rhs = load_vector(weight_g, pitch_deg, accel_g)
     (msf, mkf), (msr, mkr) = mu_front, mu_rear
-    fast = overdriven or "front"
-    base, direction = equilibrium_line(cols, rhs, fast)
-    s, eq = equal_share(base, direction, msf, msr)
-    e_holds = np.abs(s) <= 1.0
-    sgn = np.sign(s)
-    # the equal-share split, or both sliding the way it leans
-    e_forces = np.stack((eq[..., 0], np.where(e_holds, eq[..., 1], sgn * mkf * eq[..., 0]),
-                         eq[..., 2], np.where(e_holds, eq[..., 3], sgn * mkr * eq[..., 2])), axis=-1)
-    e_state = np.where(e_holds, NONE, BOTH)
-    e_reserve = (1.0 - np.abs(s)) * (msf * eq[..., 0] + msr * eq[..., 2])
+    pf, pr, cg = (np.asarray(a, dtype=float) for a in (front_contact_mm, rear_contact_mm, cg_mm))
+    af, ar, pitch = (np.asarray(a, dtype=float) for a in (front_angle_deg, rear_angle_deg, pitch_deg))
+    k, q, rho = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in (speed_ratio, pitch_term, path_ratio)))
+    mismatch = (k + q) / rho  # s_f/s_r at pure rolling of the rear
+    fast_sign = np.sign(np.round(mismatch - 1.0, 12))
+    if math.isinf(stiffness_front) and math.isinf(stiffness_rear):
+        cols = contact_columns(pf - cg, pr - cg, af, ar, rolling_resistance)
+        rhs = load_vector(weight_g, pitch, accel_g)
+        state, forces, reserve, windup = solve_rigid(cols, rhs, mu_front, mu_rear, fast_sign)
+        nf, ff, nr, fr = np.moveaxis(forces, -1, 0)
+        slides_f, slides_r = state == FRONT, state == REAR
+        slip_f = np.where(slides_f | (state == BOTH), np.nan, 0.0)
+        slip_r = np.where(slides_r | (state == BOTH), np.nan, 0.0)
+        return _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr)
 
-    if overdriven is None:
-        forces, state, reserve = e_forces, e_state, e_reserve
-    else:
-        slow = "rear" if fast == "front" else "front"
-        i_fa, i_sl = (0, 2) if fast == "front" else (2, 0)
-        ms_fa, mk_fa, ms_sl, mk_sl = (msf, mkf, msr, mkr) if fast == "front" else (msr, mkr, msf, mkf)
-        code_fa, code_sl = (FRONT, REAR) if fast == "front" else (REAR, FRONT)
-        # margins to the limits, per unit of wind-up: only a shrinking margin can reach zero
-        fast_nears = ms_fa * direction[..., i_fa] - 1.0 < 0
-        slow_nears = ms_sl * direction[..., i_sl] + direction[..., i_sl + 1] < 0
-        p_a = np.where(fast_nears, _where_ratio(base, direction, fast, ms_fa), np.inf)
-        p_b = np.where(slow_nears, _where_ratio(base, direction, slow, -ms_sl), np.inf)
-        fast_first = p_a < p_b  # on uniform ground: engine.traction.fast_slips_first
-        c = _at(base, direction, _where_ratio(base, direction, fast, mk_fa))  # fast spins at μ_k
-        d = _at(base, direction, _where_ratio(base, direction, slow, -mk_sl))  # slow dragged at μ_k
-        reserve = np.where(fast_first, ms_sl * c[..., i_sl] - np.abs(c[..., i_sl + 1]),
-                           ms_fa * d[..., i_fa] - np.abs(d[..., i_fa + 1]))
-        holds = reserve >= 0
-        x = np.where(fast_first[..., None], c, d)
-        f_fa, f_sl = x[..., i_fa + 1], x[..., i_sl + 1]
-        f_fa = np.where(fast_first | holds, f_fa, np.sign(f_fa) * mk_fa * x[..., i_fa])
-        f_sl = np.where(~fast_first | holds, f_sl, np.sign(f_sl) * mk_sl * x[..., i_sl])
-        forces = _order(fast, (x[..., i_fa], f_fa), (x[..., i_sl], f_sl))
-        state = np.where(holds, np.where(fast_first, code_fa, code_sl), BOTH)
-        # wedged: the pair presses both tyres harder than it pushes them, so neither lets go;
-        # the driveline binds and the split is the equal-share one
-        wedged = ~fast_nears & ~slow_nears
-        forces = np.where(wedged[..., None], e_forces, forces)
-        state = np.where(wedged, e_state, state)
-        reserve = np.where(wedged, e_reserve, reserve)
+    cf = NEAR_RIGID if math.isinf(stiffness_front) else float(stiffness_front)
+    cr = NEAR_RIGID if math.isinf(stiffness_rear) else float(stiffness_rear)
+    eq = _Pose(weight_g, pf, pr, cg, af, ar, pitch, rolling_resistance, accel_g)
 
-    nf, ff, nr, fr = np.moveaxis(forces, -1, 0)
-    windup = (ff - eq[..., 1]) if fast == "front" else (fr - eq[..., 3])
-    if overdriven is None:
-        windup = np.zeros_like(windup)
-    lifted = ~((nf > 0) & (nr > 0))
+    def eval_at(s_r, at=(...,)):
+        kk, qq, rr = k[at], q[at], rho[at]
+        s_f = (kk * s_r + qq) / rr
+        mf, lam_f = _ratio(s_f, cf, msf)
+        mr, lam_r = _ratio(s_r, cr, msr)
+        res, nf, nr = eq.residual(mf, mr, at)
+        return res, nf, nr, mf, mr, lam_f, lam_r
+
+    # bracket: every saturation point of either tyre, mapped to s_r
+    sat_r = 1.0 / (1.0 - np.array([-1.0, 1.0]) * 3.0 * msr / cr)
+    sat_f = (rho[..., None] / (1.0 - np.array([-1.0, 1.0]) * 3.0 * msf / cf) - q[..., None]) / k[..., None]
+    lo = np.minimum(sat_r[0], sat_f[..., 0])
+    hi = np.maximum(sat_r[1], sat_f[..., 1])
+    lo = np.where(lo > 0, lo * (1.0 - 1e-6), 1e-9 * hi)
+    hi = hi * (1.0 + 1e-6)
+    grid = lo[..., None] + (hi - lo)[..., None] * np.linspace(0.0, 1.0, _GRID)
+    g_res, g_nf, g_nr = eval_at(grid, (..., None))[:3]
+    up = (g_res[..., :-1] < 0) & (g_res[..., 1:] >= 0)
+    good = np.isfinite(g_res) & (g_nf > 0) & (g_nr > 0) & np.isfinite(g_nf) & np.isfinite(g_nr)
+    genuine = up & good[..., :-1] & good[..., 1:]
+    has_root = up.any(axis=-1)
+    j = np.where(genuine.any(axis=-1), np.argmax(genuine, axis=-1), np.argmax(up, axis=-1))
+    a = np.take_along_axis(grid, j[..., None], -1)[..., 0]
+    b = np.take_along_axis(grid, (j + 1)[..., None], -1)[..., 0]
+    for _ in range(_BISECT):
+        mid = 0.5 * (a + b)
+        below = eval_at(mid)[0] < 0
+        a, b = np.where(below, mid, a), np.where(below, b, mid)
+    ra, nfa, nra = eval_at(a)[:3]
+    rb, nfb, nrb = eval_at(b)[:3]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s_r = np.where(np.isfinite(ra) & np.isfinite(rb) & (rb > ra), a - ra * (b - a) / (rb - ra), 0.5 * (a + b))
+    s_r = np.clip(s_r, a, b)
+    _, nf, nr, mf, mr, lam_f, lam_r = eval_at(s_r)
+    # a pole, not a root: a normal force changes sign (through infinity) across the last cell
+    pole = has_root & ((nfa * nfb < 0) | (nra * nrb < 0) | ~np.isfinite(nf) | ~np.isfinite(nr))
+
+    sat_f_, sat_r_ = np.abs(lam_f) >= 1.0, np.abs(lam_r) >= 1.0
+    state = np.where(sat_f_ & sat_r_, BOTH, np.where(sat_f_, FRONT, np.where(sat_r_, REAR, NONE)))
+    ff, fr = mf * nf, mr * nr
+    slip_f, slip_r = 100.0 * (s_r * k + q) / rho - 100.0, 100.0 * (s_r - 1.0)
+    with np.errstate(invalid="ignore"):
+        reserve = np.minimum(msf * nf - np.abs(ff), msr * nr - np.abs(fr))
+
+    # one axle lets go: it carries ±μ_k N, the other the rest on its own brush curve
+    one = has_root & (state != NONE) & (state != BOTH)
+    if one.any():
+        front_slides = state == FRONT
+        m_slide = np.where(front_slides, np.sign(lam_f) * mkf, np.sign(lam_r) * mkr)
+        n_f1, n_r1, f_o = eq.one_sliding(front_slides, m_slide)
+        n_o = np.where(front_slides, n_r1, n_f1)
+        mu_o, c_o = np.where(front_slides, msr, msf), np.where(front_slides, cr, cf)
+        mk_o = np.where(front_slides, mkr, mkf)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            m_o = f_o / n_o
+            res_o = mu_o * n_o - np.abs(f_o)
+        holds = np.abs(m_o) <= mu_o
+        f_o = np.where(holds, f_o, np.sign(f_o) * mk_o * n_o)
+        f_s = m_slide * np.where(front_slides, n_f1, n_r1)
+        slip_o = np.where(holds, _slip_pct_from_ratio(m_o, c_o, mu_o), np.nan)
+        nf, nr = np.where(one, n_f1, nf), np.where(one, n_r1, nr)
+        ff = np.where(one, np.where(front_slides, f_s, f_o), ff)
+        fr = np.where(one, np.where(front_slides, f_o, f_s), fr)
+        slip_f = np.where(one, np.where(front_slides, np.nan, slip_o), slip_f)
+        slip_r = np.where(one, np.where(front_slides, slip_o, np.nan), slip_r)
+        reserve = np.where(one, res_o, reserve)
+        state = np.where(one & ~holds, BOTH, state)
+
+    # no root within the grip: both slip, spinning forward (short of drive) or dragged back
+    r_lo, r_hi = g_res[..., 0], g_res[..., -1]
+    sign_both = np.where(r_hi < 0, 1.0, -1.0)
+    no_root = ~has_root
+    nf_b, nr_b = eq.normals(sign_both * mkf, sign_both * mkr)
+    both_sat = has_root & (state == BOTH) & ~one
+    sgn_f, sgn_r = np.where(both_sat, np.sign(lam_f), sign_both), np.where(both_sat, np.sign(lam_r), sign_both)
+    if both_sat.any():
+        nf_s, nr_s = eq.normals(sgn_f * mkf, sgn_r * mkr)
+        nf_b, nr_b = np.where(both_sat, nf_s, nf_b), np.where(both_sat, nr_s, nr_b)
+    all_slide = no_root | both_sat
+    state = np.where(no_root, BOTH, state)
+    nf, nr = np.where(all_slide, nf_b, nf), np.where(all_slide, nr_b, nr)
+    ff, fr = np.where(all_slide, sgn_f * mkf * nf, ff), np.where(all_slide, sgn_r * mkr * nr, fr)
+    slip_f, slip_r = np.where(all_slide, np.nan, slip_f), np.where(all_slide, np.nan, slip_r)
+    reserve = np.where(no_root, np.where(r_hi < 0, r_hi, -r_lo), np.where(both_sat, 0.0, reserve))
+    slip_f = np.where(state == FRONT, np.nan, slip_f)
+    slip_r = np.where(state == REAR, np.nan, slip_r)
+
+    # binds: no finite forces balance the rig; show the loads before the wind-up builds
+    if pole.any():
+        cols = contact_columns(pf - cg, pr - cg, af, ar, rolling_resistance)
+        rhs = load_vector(weight_g, pitch, accel_g)
+        unwound = solve_rigid(cols, rhs, mu_front, mu_rear, np.zeros_like(fast_sign))[1]
+        nf, nr = np.where(pole, unwound[..., 0], nf), np.where(pole, unwound[..., 2], nr)
+        state = np.where(pole, BINDS, state)
     nan = np.full(np.shape(nf), np.nan)
+    ff, fr, reserve = (np.where(pole, nan, v) for v in (ff, fr, reserve))
+    slip_f, slip_r = np.where(pole, nan, slip_f), np.where(pole, nan, slip_r)
+
+    # wind-up: the kinematically fast axle's force above its grip-proportional share
+    with np.errstate(divide="ignore", invalid="ignore"):
+        share_f = msf * nf / (msf * nf + msr * nr)
+    total = ff + fr
+    windup = np.where(fast_sign < 0, fr - total * (1.0 - share_f), ff - total * share_f)
+    return _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr)
+
+
+def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr) -> ContactLoads:
+    """Grip used, and `lifted` over everything where a normal force is not positive."""
+    state = np.asarray(state).astype(np.int8)
+    lifted = ~((nf > 0) & (nr > 0))
+    binds = state == BINDS
+    slip_f, slip_r = np.where(binds, np.nan, slip_f), np.where(binds, np.nan, slip_r)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        used_f = np.where(state == FRONT, 1.0, np.abs(ff) / (msf * nf))
+        used_r = np.where(state == REAR, 1.0, np.abs(fr) / (msr * nr))
+    used_f = np.where(state == BOTH, 1.0, used_f)
+    used_r = np.where(state == BOTH, 1.0, used_r)
+    nan = np.full(np.shape(nf), np.nan)
+
+    def hide(a):
+        return np.where(lifted, nan, a)
+
     return ContactLoads(
         front_normal_g=nf,
         rear_normal_g=nr,
-        traction=TractionState(
+        traction=CourseTraction(
             state=np.where(lifted, LIFTED, state).astype(np.int8),
-            front_force_g=np.where(lifted, nan, ff),
-            rear_force_g=np.where(lifted, nan, fr),
-            windup_g=np.where(lifted, nan, windup),
-            reserve_g=np.where(lifted, nan, reserve),
+            front_force_g=hide(ff), rear_force_g=hide(fr), windup_g=hide(windup), reserve_g=hide(reserve),
+            front_slip_pct=hide(slip_f), rear_slip_pct=hide(slip_r),
+            front_grip_used=hide(used_f), rear_grip_used=hide(used_r),
         ),
     )

@@ -13,6 +13,19 @@ the rear centre from nose-up down, the front wheel settles on the first point of
 meets: a scan brackets that first crossing and Newton steps kept inside the bracket refine it,
 for all positions at once.
 
+Path ratio. Rolling without slip, each wheel turns by the travel of its own centre along its
+centre curve, whose tangent at a contact of surface angle ``α`` is ``(cos α, sin α)`` (on a
+vertex arc too: the arc is square to the edge-to-centre normal). The centres stay ``D`` apart
+along the chord at angle ``ψ``, so differentiating ``|F − R| = D`` and its direction gives
+``ρ = ds_f/ds_r = cos(α_r − ψ)/cos(α_f − ψ)`` and
+``dψ/ds_r = [ρ sin(α_f − ψ) − sin(α_r − ψ)]/D`` (the pitch rate; ``ψ`` and the pitch differ by
+a constant). On a uniform slope ``ρ = 1``; a rear on the flat and a front on a face at ``α``
+give ``cos ψ/cos(α − ψ)`` [3]_.
+
+A wheel in a V (the centre curve has a kink: two faces, or two edges, touch the tyre at once)
+has two contacts and no single contact angle; the kink is found by comparing the contact angle
+a hair either side of the centre. Such poses are flagged, not silently given one face.
+
 Rig frame: the ground line through both contacts on level ground, x forward from the rear
 contact, z up. Rear centre ``(0, r_r)``, front centre ``(L, r_f)``, CG ``(b, h)``, belly (the
 lowest line of the chassis) ``z = c`` for ``0 <= x <= L``. On a uniform slope this frame lies on
@@ -24,11 +37,14 @@ References
    a disc: the set of centres of a disc touching but not entering a shape).
 .. [2] R. N. Jazar, *Vehicle Dynamics: Theory and Application*, Springer, 2008, ch. 2 (wheel on
    an incline; vehicle frame on a grade).
+.. [3] J. L. Meriam, L. G. Kraige, *Engineering Mechanics: Dynamics*, Wiley, ch. 5 (plane
+   kinematics of a rigid body: the velocities of two points of a rigid link have equal
+   components along the link).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 
 import numpy as np
 
@@ -36,6 +52,14 @@ _SCAN = np.linspace(0.0, 1.0, 6)  # share of the pitch bracket, from its nose-up
 _MAX_STEPS = 60  # Newton converges in a handful; bisection alone would need ~44
 _GAP_TOL_MM = 1e-9
 _PSI_TOL = 1e-13  # [rad]
+# A kink in the centre curve is looked for this far either side of the centre [mm]; a contact
+# angle that jumps by more than KINK_MIN_DEG across it is a wheel touching two faces at once.
+# A smooth vertex arc turns by 2·KINK_PROBE_MM/r [rad] over the same span, far below that.
+KINK_PROBE_MM = 0.01
+KINK_MIN_DEG = 1.0
+# |cos(α_f − ψ)| below this: the front centre cannot move along its curve as the rear moves (the
+# tyre is pushed straight into a wall); the path ratio is then not defined.
+_JAM_COS = 1e-9
 
 
 @dataclass(frozen=True)
@@ -142,6 +166,68 @@ class RigPose:
     belly_clearance_mm: np.ndarray  # least height of the belly above the terrain (<= 0: touches)
     belly_point_mm: np.ndarray  # the terrain point that comes closest
     placed: np.ndarray  # False where the front wheel found no ground at the wheelbase
+    path_ratio: np.ndarray  # ρ = ds_f/ds_r of the two centres' arc lengths [-]; NaN in a V
+    pitch_rate_rad_per_mm: np.ndarray  # dφ/ds_r [rad/mm]; NaN where ρ is
+    front_kink_deg: np.ndarray  # jump of the contact angle across the front wheel's centre [deg]
+    rear_kink_deg: np.ndarray  # (> KINK_MIN_DEG: the tyre sits in a V, touching two faces)
+
+    @property
+    def front_in_v(self) -> np.ndarray:
+        return self.front_kink_deg > KINK_MIN_DEG
+
+    @property
+    def rear_in_v(self) -> np.ndarray:
+        return self.rear_kink_deg > KINK_MIN_DEG
+
+
+def kink_deg(path: WheelPath, x_mm):
+    """How much the contact angle jumps across a wheel centre at `x_mm` (0 on a smooth stretch).
+
+    Parameters
+    ----------
+    path : WheelPath
+    x_mm : array_like
+        Wheel-centre x. [mm]
+
+    Returns
+    -------
+    ndarray
+        Contact angle just ahead minus just behind, ``KINK_PROBE_MM`` either side. [deg] The
+        centre curve is an upper envelope, so its kinks always turn nose-up (positive): there the
+        wheel touches two faces (or edges) at once.
+    """
+    xq = np.asarray(x_mm, dtype=float)
+    _, behind = centre_height(path, xq - KINK_PROBE_MM)
+    _, ahead = centre_height(path, xq + KINK_PROBE_MM)
+    return np.degrees(ahead - behind)
+
+
+def path_ratio(front_angle_rad, rear_angle_rad, chord_rad, reach_mm):
+    """Path ratio ``ρ = ds_f/ds_r`` and pitch rate ``dψ/ds_r`` of two centres a fixed `reach_mm` apart.
+
+    Parameters
+    ----------
+    front_angle_rad, rear_angle_rad : array_like
+        Surface angle at each contact (direction of each centre's travel). [rad]
+    chord_rad : array_like
+        Direction of the line from the rear centre to the front centre. [rad]
+    reach_mm : float
+        Centre-to-centre distance ``D``. [mm]
+
+    Returns
+    -------
+    rho : ndarray
+        ``cos(α_r − ψ)/cos(α_f − ψ)`` [3]_. [-] NaN where the front cannot move along its curve.
+    rate : ndarray
+        ``[ρ sin(α_f − ψ) − sin(α_r − ψ)]/D``. [rad/mm]
+    """
+    af, ar, psi = (np.asarray(a, dtype=float) for a in (front_angle_rad, rear_angle_rad, chord_rad))
+    cf = np.cos(af - psi)
+    jammed = ~(np.abs(cf) > _JAM_COS)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rho = np.where(jammed, np.nan, np.cos(ar - psi) / np.where(jammed, 1.0, cf))
+    rate = (rho * np.sin(af - psi) - np.sin(ar - psi)) / reach_mm
+    return rho, rate
 
 
 def _rotate(v, phi):
@@ -321,7 +407,15 @@ def place_rig(points_mm, rear_x_mm, wheelbase_mm, front_radius_mm, rear_radius_m
     xf = xr + reach * np.cos(psi)
     zf, front_ang = centre_height(front_path, xf)
     front_c = np.stack((xf, zf), axis=-1)
-    phi = np.arctan2(zf - zr, xf - xr) - offset
+    chord = np.arctan2(zf - zr, xf - xr)
+    phi = chord - offset
+    rho, rate = path_ratio(front_ang, rear_ang, chord, reach)
+    front_kink = kink_deg(front_path, xf)
+    rear_kink = kink_deg(rear_path, xr)
+    # in a V the one-sided angles give two different ratios: none is the pose's
+    in_v = (front_kink > KINK_MIN_DEG) | (rear_kink > KINK_MIN_DEG)
+    rho = np.where(in_v, np.nan, rho)
+    rate = np.where(in_v, np.nan, rate)
 
     def normal(a):
         return np.stack((-np.sin(a), np.cos(a)), axis=-1)
@@ -348,4 +442,21 @@ def place_rig(points_mm, rear_x_mm, wheelbase_mm, front_radius_mm, rear_radius_m
         belly_clearance_mm=nan_out(gap),
         belly_point_mm=nan_out(closest),
         placed=placed,
+        path_ratio=nan_out(rho),
+        pitch_rate_rad_per_mm=nan_out(rate),
+        front_kink_deg=np.where(placed, front_kink, 0.0),
+        rear_kink_deg=rear_kink,
     )
+
+
+def concat_poses(poses) -> RigPose:
+    """One `RigPose` from the poses of consecutive chunks of positions."""
+    poses = list(poses)
+    return RigPose(**{f.name: np.concatenate([getattr(p, f.name) for p in poses])
+                      for f in fields(RigPose)})
+
+
+def vertices_within(points_mm, span_mm) -> int:
+    """Most terrain vertices inside any window of `span_mm` along x (plus the padding points)."""
+    xs = np.asarray(points_mm, dtype=float)[:, 0]
+    return int((np.searchsorted(xs, xs + span_mm, side="right") - np.arange(xs.size)).max()) + 2

@@ -1,39 +1,55 @@
-"""Walk a setup's course: pose, loads and slip state at each rear-wheel position, and the events.
+"""Walk a rig over a course: pose, path ratio, loads, tyre slip and state per position, and events.
 
-The rig crawls forward along ``[course]`` (x increasing); at each position the tyres carry the
-climb (gravity along the ground plus rolling resistance), with the setup's throttle acceleration
-when its ``terrain.load`` is "climb" (as in `engine.analyse`). Positions are rear wheel-centre x
-from the first course point until the front centre reaches the last one.
+The rig crawls forward along a course (x increasing); at each position the tyres carry the
+climb (gravity along the ground plus rolling resistance) with the setup's throttle acceleration.
+Positions are rear wheel-centre x from the first course point until the front centre reaches the
+last one. The course is the setup's own ``[course]`` or one given separately (a course file).
 
-Events mark where a per-position state changes, at the first position in the new state: an axle
-lifts or comes back down, the overdriven axle takes over as the one that lets go first
-(handover) or hands back, the rig can no longer hold (both axles slip) or holds again, the belly
-touches or clears.
+Per position: the pose (`engine.course_geometry`), the path ratio ``ρ`` and pitch rate of the two
+wheel centres, the driveline's speed ratio ``K = g D_f(N_f)/D_r(N_r)`` with the rolling diameters
+under this position's loads (fixed-point: the loads depend on ``K`` through the tyre forces), and
+the two-contact statics with tyre slip (`engine.contact_statics`). The axle that is overdriven at
+a place is the one on its side of ``s_f/s_r = (K + (g − 1) r_f dφ/ds_r)/ρ = 1``, not the one the
+gears favour: where the front centre climbs faster than the rear (``ρ > K``) an overdriven front
+is kinematically underdriven and the wind-up reverses.
+
+A tyre sitting in a V (touching two faces) has two contacts: that pose is outside this model and
+is reported as such (state ``outside``), never solved with one face.
+
+The positions are walked in chunks sized so that positions × terrain points in view stays under a
+fixed budget: memory follows the course's size, not the product.
+
+Events mark where a per-position state changes, at the first position in the new state.
 
 References
 ----------
 .. [1] T. D. Gillespie, *Fundamentals of Vehicle Dynamics*, SAE, 1992, ch. 2 (axle loads on a
    grade, traction-limited climbing).
-.. [2] J. L. Meriam, L. G. Kraige, *Engineering Mechanics: Statics*, Wiley, ch. 3 (planar
-   equilibrium).
+.. [2] H. B. Pacejka, *Tire and Vehicle Dynamics*, 3rd ed., 2012, ch. 3 (rolling radius, brush model).
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Optional
 
 import numpy as np
 
 from .analysis import effective_rig, setup_overdrive
-from .contact_statics import solve_contacts
-from .course_geometry import RigPose, place_rig
+from .contact_rigid import BINDS
+from .contact_statics import ContactLoads, CourseTraction, solve_contacts
+from .course_geometry import RigPose, concat_poses, place_rig, vertices_within
 from .setup_file import SetupError
 from .setup_model import Course, Setup
-from .traction import BOTH, FRONT, LIFTED, NONE, REAR, STATES, TractionState
+from .traction import BOTH, FRONT, LIFTED, NONE, REAR, STATES
 
 DEFAULT_STEP_MM = 5.0
 MAX_POSITIONS = 200_000  # a typo in --step should not eat the memory
+CHUNK_ELEMENTS = 1 << 17  # positions × terrain points in view, per chunk
+OUTSIDE = len(STATES)  # course only: a tyre in a V, or the front jammed against a wall
+WALK_STATES = STATES + ("outside",)
+_K_PASSES = 3  # fixed-point passes for load-dependent rolling diameters
 
 
 @dataclass(frozen=True)
@@ -48,8 +64,9 @@ class CourseEvent:
 
 
 EVENT_KINDS = (
-    "front_lifts", "front_down", "rear_lifts", "rear_down", "handover", "hand_back",
-    "cannot_hold", "holds_again", "belly_touches", "belly_clear",
+    "front_lifts", "front_down", "rear_lifts", "rear_down", "outside_model", "inside_model",
+    "windup_reverses", "handover", "hand_back", "both_grip", "cannot_hold", "holds_again", "binds",
+    "unbinds", "belly_touches", "belly_clear",
 )
 
 
@@ -59,12 +76,14 @@ class CourseWalk:
 
     setup: Setup
     course: Course
-    overdriven: Optional[str]  # "front", "rear" or None
+    overdriven: Optional[str]  # by gears and tyre sizes alone: "front", "rear" or None
     step_mm: float
     pose: RigPose
     front_normal_g: np.ndarray  # [gf]
     rear_normal_g: np.ndarray
-    traction: TractionState  # state codes, ground forces along each contact tangent [gf]
+    traction: CourseTraction  # state codes into WALK_STATES, tyre forces along each tangent [gf]
+    speed_ratio: np.ndarray  # K at each position's loads [-]
+    mismatch: np.ndarray  # s_f/s_r with the rear rolling: (K + pitch term)/ρ [-]
     events: tuple  # CourseEvent, in course order
 
     @property
@@ -72,55 +91,160 @@ class CourseWalk:
         return self.pose.rear_centre_mm[:, 0]
 
     @property
+    def path_ratio(self) -> np.ndarray:
+        return self.pose.path_ratio
+
+    @property
     def belly_touch(self) -> np.ndarray:
         return self.pose.belly_clearance_mm <= 0
 
     @property
     def lifted(self) -> list[Optional[str]]:
-        """Per position: "front", "rear" or None (as `engine.Sweep.lifted`; no front ground: "front")."""
-        return [(None, "front", "rear")[c] for c in _lift_code(self.front_normal_g, self.rear_normal_g)]
+        """Per position: "front", "rear" or None (no front ground: "front"; outside the model: None)."""
+        codes = _lift_code(self.front_normal_g, self.rear_normal_g, self.traction.state == OUTSIDE)
+        return [(None, "front", "rear")[c] for c in codes]
 
     @property
     def slipping(self) -> list[str]:
-        return [STATES[c] for c in self.traction.state]
+        return [WALK_STATES[c] for c in self.traction.state]
+
+    @property
+    def overdriven_here(self) -> list[Optional[str]]:
+        """Per position: the kinematically faster axle, "front", "rear" or None (no mismatch or unknown)."""
+        return [_fast_name(m) for m in self.mismatch]
+
+    @property
+    def in_v(self) -> list[Optional[str]]:
+        """Per position: which tyre sits in a V ("front", "rear", "both") or None."""
+        f, r = self.pose.front_in_v, self.pose.rear_in_v
+        return [("both" if a and b else "front" if a else "rear" if b else None) for a, b in zip(f, r)]
 
     def __len__(self) -> int:
         return int(self.rear_x_mm.size)
 
 
-def course_positions(setup: Setup, step_mm: float = DEFAULT_STEP_MM) -> np.ndarray:
-    """Rear wheel-centre x of each position, every `step_mm`, front centre within the course. [mm]"""
-    course = setup.course
+def _fast_name(mismatch: float) -> Optional[str]:
+    if not math.isfinite(mismatch) or abs(mismatch - 1.0) <= 1e-12:
+        return None
+    return "front" if mismatch > 1.0 else "rear"
+
+
+def _course_of(setup: Setup, course: Optional[Course]) -> Course:
+    course = setup.course if course is None else course
     if course is None:
-        raise SetupError("no [course] in this setup: add [course] with name, points_mm and belly_clearance_mm")
-    if not (np.isfinite(step_mm) and step_mm > 0):
-        raise SetupError(f"step must be a number > 0 [mm], not {step_mm!r}")
+        raise SetupError("no course: give a course file (--course) or add [course] with name, points_mm "
+                         "and belly_clearance_mm")
+    return course
+
+
+def walk_span_mm(setup: Setup, course: Optional[Course] = None) -> tuple[float, float]:
+    """First and last rear wheel-centre x of a walk (front centre within the course). [mm]"""
+    course = _course_of(setup, course)
     r = setup.rig
     reach = float(np.hypot(r.wheelbase_mm, (r.tire_dia_front_mm - r.tire_dia_rear_mm) / 2.0))
     x0, x1 = course.points_mm[0][0], course.points_mm[-1][0]
-    end = x1 - reach
-    if end < x0:
+    if x1 - reach < x0:
         raise SetupError(
             f"course.points_mm: the course is {x1 - x0:g} mm long, shorter than the wheelbase "
             f"({r.wheelbase_mm:g} mm); the rig cannot stand on it")
-    count = int(np.floor((end - x0) / step_mm + 1e-9)) + 1
-    if count > MAX_POSITIONS:
-        raise SetupError(f"step {step_mm:g} mm gives {count} positions; use a step of at least "
-                         f"{(end - x0) / (MAX_POSITIONS - 1):.3g} mm")
-    return x0 + step_mm * np.arange(count)
+    return x0, x1 - reach
 
 
-def walk_course(setup: Setup, step_mm: float = DEFAULT_STEP_MM, rear_x_mm=None) -> CourseWalk:
-    """Place the rig at each position of the setup's course and solve the contact statics.
+def course_positions(setup: Setup, step_mm: float = DEFAULT_STEP_MM, course: Optional[Course] = None) -> np.ndarray:
+    """Rear wheel-centre x of each position, every `step_mm`, front centre within the course. [mm]"""
+    x0, end = walk_span_mm(setup, course)
+    if not (isinstance(step_mm, (int, float)) and math.isfinite(step_mm) and step_mm > 0):
+        raise SetupError(f"step must be a number > 0 [mm], not {step_mm!r}")
+    count = (end - x0) / step_mm  # a float: a subnormal step gives inf here, not an OverflowError
+    if not count < MAX_POSITIONS - 1:
+        raise SetupError(f"step {step_mm:g} mm gives more than {MAX_POSITIONS} positions; use a step of at "
+                         f"least {max((end - x0) / (MAX_POSITIONS - 1), 1e-3):.3g} mm")
+    return x0 + step_mm * np.arange(int(math.floor(count + 1e-9)) + 1)
+
+
+def chunk_size(course: Course, rig, clearance_mm: float) -> int:
+    """Positions per chunk: the terrain points one position looks at, kept under `CHUNK_ELEMENTS`."""
+    r = max(rig.tire_dia_front_mm, rig.tire_dia_rear_mm) / 2.0
+    pts = course.points_mm
+    per_wheel = 6 * vertices_within(pts, 2.0 * r)  # the front placement scans six pitch angles
+    in_reach = vertices_within(pts, rig.wheelbase_mm + 4.0 * r)
+    belly = 3 * vertices_within(pts, rig.wheelbase_mm + 6.0 * r + 4.0 * abs(clearance_mm))
+    return max(1, CHUNK_ELEMENTS // max(per_wheel, in_reach, belly))
+
+
+def _rolling_dia(level_mm, loss_mm_per_100g, free_mm, normal_g, level_g):
+    """Rolling diameter under load, clamped at the free diameter and at half the level one. [mm]"""
+    d = level_mm - loss_mm_per_100g * (np.asarray(normal_g) - level_g) / 100.0
+    return np.clip(np.where(np.isfinite(d), d, level_mm), 0.5 * level_mm, free_mm)
+
+
+def _tyre_keys(setup: Setup):
+    """(rolling diameters, their losses per 100 g, slip stiffnesses) with the file's defaults."""
+    r, g = setup.rig, setup.grip
+    dia = (getattr(r, "rolling_dia_front_mm", None) or r.tire_dia_front_mm,
+           getattr(r, "rolling_dia_rear_mm", None) or r.tire_dia_rear_mm)
+    loss = (getattr(r, "rolling_dia_loss_front_mm_per_100g", 0.0) or 0.0,
+            getattr(r, "rolling_dia_loss_rear_mm_per_100g", 0.0) or 0.0)
+    stiff = g.axle_stiffness() if hasattr(g, "axle_stiffness") else (math.inf, math.inf)
+    return dia, loss, stiff
+
+
+def _solve_chunk(setup, rig, gear, pose: RigPose):
+    """Statics of one chunk of poses, with K from the loads (fixed point)."""
+    (dia_f, dia_r), (loss_f, loss_r), (c_f, c_r) = _tyre_keys(setup)
+    fs, fk, rs, rk = setup.grip.axle_mu()
+    level_f = rig.mass_g * rig.cg_from_rear_mm / rig.wheelbase_mm
+    level_r = rig.mass_g - level_f
+    outside = ~np.isfinite(pose.path_ratio) | ~(pose.path_ratio > 0)
+    rho = np.where(outside, 1.0, pose.path_ratio)
+    rate = np.where(outside, 0.0, pose.pitch_rate_rad_per_mm)
+    nf, nr = np.full(rho.shape, level_f), np.full(rho.shape, level_r)
+    passes = _K_PASSES if (loss_f or loss_r) else 1
+    for _ in range(passes):
+        d_f = _rolling_dia(dia_f, loss_f, rig.tire_dia_front_mm, nf, level_f)
+        d_r = _rolling_dia(dia_r, loss_r, rig.tire_dia_rear_mm, nr, level_r)
+        k = gear * d_f / d_r
+        q = (gear - 1.0) * (d_f / 2.0) * rate
+        loads = solve_contacts(
+            rig.mass_g, pose.front_contact_mm, pose.rear_contact_mm, pose.cg_mm, pose.front_angle_deg,
+            pose.rear_angle_deg, pose.pitch_deg, (fs, fk), (rs, rk), c_f, c_r, k, q, rho,
+            setup.grip.rolling_resistance, setup.terrain.accel_g,
+        )
+        nf = np.where(np.isfinite(loads.front_normal_g), loads.front_normal_g, level_f)
+        nr = np.where(np.isfinite(loads.rear_normal_g), loads.rear_normal_g, level_r)
+    mismatch = np.where(outside, np.nan, (k + q) / rho)
+    return loads, k, mismatch, outside
+
+
+def _mark(loads: ContactLoads, pose: RigPose, outside) -> ContactLoads:
+    """Unplaced fronts are lifted; tyres in a V or a jammed front are outside the model."""
+    t = loads.traction
+    nan = np.full(outside.shape, np.nan)
+    state = np.where(outside, OUTSIDE, t.state)
+    state = np.where(~pose.placed, LIFTED, state).astype(np.int8)
+    hidden = outside | ~pose.placed
+
+    def hide(a):
+        return np.where(hidden, nan, a)
+
+    fields = {k: hide(getattr(t, k)) for k in CourseTraction.__dataclass_fields__ if k != "state"}
+    return ContactLoads(hide(loads.front_normal_g), hide(loads.rear_normal_g), CourseTraction(state=state, **fields))
+
+
+def walk_course(setup: Setup, step_mm: float = DEFAULT_STEP_MM, rear_x_mm=None,
+                course: Optional[Course] = None) -> CourseWalk:
+    """Place the rig at each position of a course and solve the contact statics.
 
     Parameters
     ----------
     setup : Setup
-        A setup with ``course`` set.
+        The rig (its own ``course`` is used when `course` is not given).
     step_mm : float, default 5
         Distance between positions. [mm]
     rear_x_mm : array_like, optional
         Explicit rear wheel-centre positions instead of the regular steps. [mm]
+    course : Course, optional
+        A course from a course file.
 
     Returns
     -------
@@ -130,75 +254,94 @@ def walk_course(setup: Setup, step_mm: float = DEFAULT_STEP_MM, rear_x_mm=None) 
     Raises
     ------
     SetupError
-        No ``[course]``, a bad step, or a course shorter than the wheelbase.
+        No course, a bad step, or a course shorter than the wheelbase.
     """
-    xs = course_positions(setup, step_mm) if rear_x_mm is None else np.asarray(rear_x_mm, dtype=float).ravel()
-    course = setup.course
+    course = _course_of(setup, course)
+    if rear_x_mm is None:
+        xs = course_positions(setup, step_mm, course)
+    else:
+        xs = np.asarray(rear_x_mm, dtype=float).ravel()
     rig = effective_rig(setup)
-    overdriven = setup_overdrive(setup).overdriven_axle
-    pose = place_rig(
-        course.points_mm, xs, rig.wheelbase_mm, rig.tire_dia_front_mm / 2.0, rig.tire_dia_rear_mm / 2.0,
-        rig.cg_from_rear_mm, rig.cg_height_mm, course.belly_clearance_mm,
-    )
-    fs, fk, rs, rk = setup.grip.axle_mu()
-    accel = setup.terrain.accel_g if setup.terrain.load == "climb" else 0.0
-    loads = solve_contacts(
-        rig.mass_g, pose.front_contact_mm - pose.cg_mm, pose.rear_contact_mm - pose.cg_mm,
-        pose.front_angle_deg, pose.rear_angle_deg, pose.pitch_deg, (fs, fk), (rs, rk), overdriven,
-        setup.grip.rolling_resistance, accel,
-    )
-    t = loads.traction
-    unplaced = ~pose.placed
-    traction = TractionState(
-        state=np.where(unplaced, LIFTED, t.state).astype(np.int8),
-        front_force_g=t.front_force_g, rear_force_g=t.rear_force_g,
-        windup_g=t.windup_g, reserve_g=t.reserve_g,
-    )
-    events = find_events(
-        traction.state, loads.front_normal_g, loads.rear_normal_g, pose.belly_clearance_mm <= 0,
-        xs, pose.front_centre_mm[:, 0], overdriven,
-    )
-    return CourseWalk(setup, course, overdriven, float(step_mm), pose, loads.front_normal_g,
-                      loads.rear_normal_g, traction, tuple(events))
+    od = setup_overdrive(setup)
+    gear = 1.0 + od.gear_pct / 100.0
+    size = chunk_size(course, rig, course.belly_clearance_mm)
+    poses, loads, ks, mism = [], [], [], []
+    for start in range(0, max(xs.size, 1), size):
+        pose = place_rig(
+            course.points_mm, xs[start:start + size], rig.wheelbase_mm, rig.tire_dia_front_mm / 2.0,
+            rig.tire_dia_rear_mm / 2.0, rig.cg_from_rear_mm, rig.cg_height_mm, course.belly_clearance_mm,
+        )
+        chunk_loads, k, mismatch, outside = _solve_chunk(setup, rig, gear, pose)
+        poses.append(pose)
+        loads.append(_mark(chunk_loads, pose, outside))
+        ks.append(k)
+        mism.append(mismatch)
+    pose = concat_poses(poses)
+    nf = np.concatenate([c.front_normal_g for c in loads])
+    nr = np.concatenate([c.rear_normal_g for c in loads])
+    traction = CourseTraction(**{k: np.concatenate([getattr(c.traction, k) for c in loads])
+                                 for k in CourseTraction.__dataclass_fields__})
+    k_all, mismatch = np.concatenate(ks), np.concatenate(mism)
+    events = find_events(traction.state, nf, nr, pose.belly_clearance_mm <= 0, xs,
+                         pose.front_centre_mm[:, 0], mismatch, pose)
+    return CourseWalk(setup, course, od.overdriven_axle, float(step_mm), pose, nf, nr, traction,
+                      k_all, mismatch, tuple(events))
 
 
-def _lift_code(front_normal_g, rear_normal_g) -> np.ndarray:
+def _lift_code(front_normal_g, rear_normal_g, outside=None) -> np.ndarray:
     """0 on the ground, 1 front lifted, 2 rear lifted (NaN normals count as front lifted)."""
     front_up = ~(np.asarray(front_normal_g) > 0)
-    return np.where(front_up, 1, np.where(np.asarray(rear_normal_g) > 0, 0, 2))
+    code = np.where(front_up, 1, np.where(np.asarray(rear_normal_g) > 0, 0, 2))
+    return code if outside is None else np.where(outside, 0, code)
 
 
-def state_words(code: int, overdriven: Optional[str]) -> str:
-    """Plain words for a slip state code."""
+def state_words(code: int, fast_here: Optional[str]) -> str:
+    """Plain words for a slip state code; `fast_here` is the kinematically faster axle there."""
     if code == NONE:
         return "both axles grip"
     if code == BOTH:
         return "both axles slip"
     if code == LIFTED:
         return "an axle is off the ground"
+    if code == BINDS:
+        return "the driveline binds: neither tyre can slip, forces grow with motor torque (stop)"
+    if code == OUTSIDE:
+        return "outside this model (a tyre touches two faces, or the front is jammed): check by hand"
     axle = "front" if code == FRONT else "rear"
     other = "rear" if code == FRONT else "front"
-    if overdriven == axle:
-        return f"the overdriven {axle} lets go first, the {other} grips"
-    return f"the {axle} lets go first (dragged), the {other} grips"
+    if fast_here == axle:
+        return f"the {axle} (overdriven here) lets go, the {other} grips"
+    return f"the {axle} lets go (dragged), the {other} grips"
 
 
-def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, front_x_mm, overdriven):
+def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, front_x_mm, mismatch, pose=None):
     """Events where the per-position states change, in course order.
 
-    Three channels change independently: lift (front / rear / none), slip state among the
-    holding and both-slip states (compared with the last position on the ground), and belly
-    contact. Each change is reported at the first position in the new state.
+    Channels change independently: inside / outside the model (a tyre in a V); lift (front /
+    rear / none); which axle is kinematically faster; the slip role (both grip, the faster axle
+    lets go, the slower one does, both slip, binds) among the positions on the ground, compared
+    with the last such position; belly contact.
     """
-    lift = _lift_code(front_normal_g, rear_normal_g)
     state = np.asarray(state)
+    outside = state == OUTSIDE
+    lift = _lift_code(front_normal_g, rear_normal_g, outside)
     touch = np.asarray(belly_touch, dtype=bool)
-    fast = {"front": FRONT, "rear": REAR}.get(overdriven)
-    slow = {"front": REAR, "rear": FRONT}.get(overdriven)
     events = []
 
     def add(kind, i, text):
         events.append(CourseEvent(kind, int(i), float(rear_x_mm[i]), float(front_x_mm[i]), text))
+
+    for i in np.flatnonzero(outside[1:] != outside[:-1]) + 1:
+        if outside[i]:
+            which = "a tyre"
+            if pose is not None:
+                f, r = bool(pose.front_in_v[i]), bool(pose.rear_in_v[i])
+                which = ("both tyres sit" if f and r else "the front tyre sits" if f else
+                         "the rear tyre sits" if r else "the front is jammed against a wall;")
+                which = which if which.endswith(";") else which + " in a V (touching two faces):"
+            add("outside_model", i, f"{which} outside this model, check this pose by hand")
+        else:
+            add("inside_model", i, "back inside the model")
 
     for i in np.flatnonzero(lift[1:] != lift[:-1]) + 1:
         before, now = lift[i - 1], lift[i]
@@ -211,20 +354,37 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
         elif now == 2:
             add("rear_lifts", i, "the rear lifts: the rig tips over its nose")
 
-    grounded = np.flatnonzero(lift == 0)
-    if grounded.size:
-        s = state[grounded]
-        for k in np.flatnonzero(s[1:] != s[:-1]) + 1:
-            i, before, now = grounded[k], s[k - 1], s[k]
-            words = state_words(int(now), overdriven)
-            if now == BOTH:
-                add("cannot_hold", i, "cannot hold: both axles slip; the rig stalls or slides back")
-            elif before == BOTH:
-                add("holds_again", i, f"holds again: {words}")
-            elif now == fast:
-                add("handover", i, f"handover: {words}")
-            elif now == slow:
-                add("hand_back", i, f"hands back: {words}")
+    grounded = np.flatnonzero((lift == 0) & ~outside & (state != LIFTED))
+    mismatch = np.asarray(mismatch, dtype=float)
+    fast = np.where(np.isfinite(mismatch), np.sign(np.round(mismatch - 1.0, 12)), 0).astype(int)
+    names = {1: "front", -1: "rear", 0: None}
+    lets_go = np.where(state == FRONT, 1, np.where(state == REAR, -1, 0))
+    role = np.select([state == NONE, lets_go != 0, state == BOTH],
+                     [0, np.where(lets_go == fast, 1, 2), 3], 4)  # see _role
+    g_fast, g_role = fast[grounded], role[grounded]
+    flips = (g_fast[1:] != g_fast[:-1]) & (g_fast[1:] != 0) & (g_fast[:-1] != 0)
+    for k in np.flatnonzero(flips) + 1:
+        i = grounded[k]
+        ratio = f"; path ratio {pose.path_ratio[i]:.3f}" if pose is not None else ""
+        add("windup_reverses", i, f"the wind-up reverses: the {names[g_fast[k]]} is now the faster axle "
+                                  f"(s_f/s_r {mismatch[i]:.3f}{ratio})")
+    for k in np.flatnonzero(g_role[1:] != g_role[:-1]) + 1:
+        i, before, now = grounded[k], g_role[k - 1], g_role[k]
+        words = state_words(int(state[i]), names[fast[i]])
+        if now == 4:
+            add("binds", i, words)
+        elif before == 4:
+            add("unbinds", i, f"the driveline frees: {words}")
+        elif now == 3:
+            add("cannot_hold", i, "cannot hold: both axles slip; the rig stalls or slides back")
+        elif before == 3:
+            add("holds_again", i, f"holds again: {words}")
+        elif now == 1:
+            add("handover", i, f"handover: {words}")
+        elif now == 2:
+            add("hand_back", i, f"hands back: {words}")
+        else:
+            add("both_grip", i, "both axles grip again (the tyres absorb the wind-up as slip)")
 
     for i in np.flatnonzero(touch[1:] != touch[:-1]) + 1:
         if touch[i]:
