@@ -55,7 +55,8 @@ from .tyre_brush import brush_psi, brush_psi_inverse
 # An axle given as rigid beside one with a finite stiffness is solved with this stiffness: its
 # linear range (3μ/c in σ) is then below the bisection's resolution.
 NEAR_RIGID = 1e9
-_GRID = 17  # residual samples across the bracket
+_GRID = 33  # residual samples across the bracket, plus the poles
+_POLE_GAP = 1e-9  # grid points this far (relative) either side of a pole
 _BISECT = 48  # halvings of the bracket cell; a secant step on the last cell finishes it
 
 
@@ -153,6 +154,22 @@ def _ratio(s, stiffness, mu_s):
     return mu_s * brush_psi(lam), lam
 
 
+def _speed_ratio_for(m, stiffness, mu_s):
+    """Wheel speed ratio ``s`` at which a gripping tyre carries force ratio `m` (NaN beyond ±μ_s)."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inside = np.abs(m) < mu_s
+        sigma = 3.0 * mu_s * brush_psi_inverse(np.where(inside, m / mu_s, 0.0)) / stiffness
+        return np.where(inside, 1.0 / (1.0 - sigma), np.nan)
+
+
+def _poles(eq, k, q, rho, cf, cr, msf, msr):
+    """``s_r`` where a normal force's denominator ``A + m B`` vanishes, for each tyre (NaN: none)."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s_f = _speed_ratio_for(-eq.af / eq.bf, cf, msf)
+        s_r = _speed_ratio_for(-eq.ar / eq.br, cr, msr)
+    return np.stack(((rho * s_f - q) / k, s_r), axis=-1)
+
+
 def _slip_pct_from_ratio(m, stiffness, mu_s):
     """κ [%] of a gripping tyre carrying force ratio `m` (inverse brush curve)."""
     sigma = 3.0 * mu_s * brush_psi_inverse(np.clip(m / mu_s, -1.0, 1.0)) / stiffness
@@ -228,7 +245,12 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     hi = np.maximum(sat_r[1], sat_f[..., 1])
     lo = np.where(lo > 0, lo * (1.0 - 1e-6), 1e-9 * hi)
     hi = hi * (1.0 + 1e-6)
-    grid = lo[..., None] + (hi - lo)[..., None] * np.linspace(0.0, 1.0, _GRID)
+    # the poles (a normal force through infinity) as grid points, so no cell holds a pole and a root
+    poles = _poles(eq, k, q, rho, cf, cr, msf, msr)
+    poles = np.where((poles > lo[..., None]) & (poles < hi[..., None]), poles, lo[..., None])
+    width = (hi - lo)[..., None]
+    grid = np.sort(np.concatenate((lo[..., None] + width * np.linspace(0.0, 1.0, _GRID),
+                                   poles * (1.0 - _POLE_GAP), poles * (1.0 + _POLE_GAP)), axis=-1), axis=-1)
     g_res, g_nf, g_nr = eval_at(grid, (..., None))[:3]
     up = (g_res[..., :-1] < 0) & (g_res[..., 1:] >= 0)
     good = np.isfinite(g_res) & (g_nf > 0) & (g_nr > 0) & np.isfinite(g_nf) & np.isfinite(g_nr)
@@ -314,7 +336,9 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     # wind-up: the kinematically fast axle's force above its grip-proportional share
     with np.errstate(divide="ignore", invalid="ignore"):
         share_f = msf * nf / (msf * nf + msr * nr)
-    total = ff + fr
+    # what the tyres must supply along the chord; on a uniform slope F_req = W (sin θ + c_rr cos θ + a_x)
+    c = rolling_resistance
+    total = -(nf * (eq.enf - c * eq.etf) + nr * (eq.enr - c * eq.etr) + eq.el)
     windup = np.where(fast_sign < 0, fr - total * (1.0 - share_f), ff - total * share_f)
     return _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr)
 

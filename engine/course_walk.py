@@ -304,13 +304,13 @@ def state_words(code: int, fast_here: Optional[str]) -> str:
     if code == LIFTED:
         return "an axle is off the ground"
     if code == BINDS:
-        return "the driveline binds: neither tyre can slip, forces grow with motor torque (stop)"
+        return "the driveline binds: no tyre can slip, forces grow (stop)"
     if code == OUTSIDE:
-        return "outside this model (a tyre touches two faces, or the front is jammed): check by hand"
+        return "outside this model (a tyre in a V, or jammed): check by hand"
     axle = "front" if code == FRONT else "rear"
     other = "rear" if code == FRONT else "front"
     if fast_here == axle:
-        return f"the {axle} (overdriven here) lets go, the {other} grips"
+        return f"the {axle} (faster here) lets go, the {other} grips"
     return f"the {axle} lets go (dragged), the {other} grips"
 
 
@@ -333,13 +333,13 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
 
     for i in np.flatnonzero(outside[1:] != outside[:-1]) + 1:
         if outside[i]:
-            which = "a tyre"
+            which = "a tyre touches two faces:"
             if pose is not None:
                 f, r = bool(pose.front_in_v[i]), bool(pose.rear_in_v[i])
                 which = ("both tyres sit" if f and r else "the front tyre sits" if f else
-                         "the rear tyre sits" if r else "the front is jammed against a wall;")
-                which = which if which.endswith(";") else which + " in a V (touching two faces):"
-            add("outside_model", i, f"{which} outside this model, check this pose by hand")
+                         "the rear tyre sits" if r else "the front is jammed:")
+                which = which if which.endswith(":") else which + " in a V (two faces):"
+            add("outside_model", i, f"{which} outside the model")
         else:
             add("inside_model", i, "back inside the model")
 
@@ -365,9 +365,8 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
     flips = (g_fast[1:] != g_fast[:-1]) & (g_fast[1:] != 0) & (g_fast[:-1] != 0)
     for k in np.flatnonzero(flips) + 1:
         i = grounded[k]
-        ratio = f"; path ratio {pose.path_ratio[i]:.3f}" if pose is not None else ""
-        add("windup_reverses", i, f"the wind-up reverses: the {names[g_fast[k]]} is now the faster axle "
-                                  f"(s_f/s_r {mismatch[i]:.3f}{ratio})")
+        ratio = f" (path ratio {pose.path_ratio[i]:.3f})" if pose is not None else ""
+        add("windup_reverses", i, f"wind-up reverses: the {names[g_fast[k]]} runs faster{ratio}")
     for k in np.flatnonzero(g_role[1:] != g_role[:-1]) + 1:
         i, before, now = grounded[k], g_role[k - 1], g_role[k]
         words = state_words(int(state[i]), names[fast[i]])
@@ -384,7 +383,7 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
         elif now == 2:
             add("hand_back", i, f"hands back: {words}")
         else:
-            add("both_grip", i, "both axles grip again (the tyres absorb the wind-up as slip)")
+            add("both_grip", i, "both axles grip (the tyres absorb the wind-up as slip)")
 
     for i in np.flatnonzero(touch[1:] != touch[:-1]) + 1:
         if touch[i]:

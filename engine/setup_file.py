@@ -32,6 +32,7 @@ from .setup_model import (
 from .toml_scan import ScanProblem, line_index, scan
 
 MAX_FILE_BYTES = 1 << 20
+MAX_COURSE_POINTS = 100_000  # a 1 MiB file holds about that many short points
 MAX_STAGES = 10  # more would overflow the reduction (1000**103 > 1e308); real drivelines have 1 to 4
 # Unknown keys warned about one by one; past this one summary line (a file of thousands of unknown
 # keys would otherwise bury the screen).
@@ -186,6 +187,9 @@ class _Reader:
             self.fail("schema", f"schema = {_show(schema)}: must be the whole number {SCHEMA_VERSION}")
         if schema > SCHEMA_VERSION:
             self.fail("schema", f"schema = {schema}: newer than this slopetune reads ({SCHEMA_VERSION}); update slopetune")
+        if "course" in d and "rig" not in d and set(d) <= {"schema", "course"}:
+            raise SetupError("a course file (schema and [course] only), not a setup: walk a rig over it with "
+                             "slopetune walk SETUP --course FILE", self.path, None)
         name = self.text_value(d, "name", "name", Path(self.path).stem)
         notes = self.text_value(d, "notes", "notes", "")
 
@@ -270,13 +274,20 @@ class _Reader:
             if (not isinstance(p, list) or len(p) != 2
                     or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) for v in p)):
                 self.fail("course.points_mm", f"course.points_mm: point {_show(p)} must be [x, z], finite numbers")
+            for v in p:
+                problem = FIELDS["course.point_mm"].problem(v)
+                if problem:
+                    self.fail("course.points_mm", f"course.points_mm: point {_show(p)}: coordinate {v!r} {problem} [mm]")
             out.append((float(p[0]), float(p[1])))
         if any(b[0] <= a[0] for a, b in zip(out, out[1:])):
             self.fail("course.points_mm", "course.points_mm: x must increase from point to point")
-        clearance = c.get("belly_clearance_mm")
-        if isinstance(clearance, bool) or not isinstance(clearance, (int, float)) or not math.isfinite(clearance) or clearance <= 0:
-            self.fail("course.belly_clearance_mm",
-                      f"course.belly_clearance_mm = {_show(clearance)}: must be a number > 0 [mm]")
+        if len(pts) > MAX_COURSE_POINTS:
+            self.fail("course.points_mm", f"course.points_mm: {len(pts)} points; a course holds at most "
+                                          f"{MAX_COURSE_POINTS}")
+        if "belly_clearance_mm" not in c:
+            self.fail("course", "course.belly_clearance_mm: missing; required, "
+                                f"{FIELDS['course.belly_clearance_mm'].allowed()} [mm]")
+        clearance = self.number(c, "belly_clearance_mm", "course.belly_clearance_mm")
         return Course(name, tuple(out), float(clearance))
 
 
@@ -321,6 +332,15 @@ def parse_setup(text: str, path: str = "<setup>") -> tuple[Setup, dict, list]:
         text = text[1:]
     if not text.strip():
         raise SetupError("file is empty; a setup needs at least schema, [rig], [grip] and [terrain]", path)
+    data, index = parse_toml(text, path)
+    reader = _Reader(path, text, data, index)
+    setup = reader.read()
+    return setup, data, [one_line(w) for w in reader.finish_warnings()]
+
+
+def parse_toml(text: str, path: str = "<setup>"):
+    """(table, line index) of TOML `text`, the parser's cost bounded first; `SetupError` naming
+    the line otherwise. Shared by setup and course files."""
     try:  # bound the parser's cost before it runs (deep nesting, huge dotted keys)
         index = scan(text)
     except ScanProblem as exc:
@@ -337,9 +357,7 @@ def parse_setup(text: str, path: str = "<setup>") -> tuple[Setup, dict, list]:
         raise SetupError(f"TOML syntax: {reason}", path, line) from None
     except RecursionError:  # the scan bounds nesting; this is a last guard, not a path
         raise SetupError("TOML too complex to be a setup: nested too deep", path) from None
-    reader = _Reader(path, text, data, index)
-    setup = reader.read()
-    return setup, data, [one_line(w) for w in reader.finish_warnings()]
+    return data, index
 
 
 def _read_raw(path) -> tuple[bytes, os.stat_result]:

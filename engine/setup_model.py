@@ -211,6 +211,13 @@ FIELDS: dict[str, FieldRule] = {
     "terrain.heading_deg": FieldRule(lo=-180.0, hi=180.0, lo_open=False, hi_open=False, optional=True,
                                      default=0.0, unit="deg",
                                      help="nose from straight up the fall line, clockwise; 90: left side uphill"),
+    # Coordinates within a kilometre keep every product of lengths far from overflow.
+    "course.point_mm": FieldRule(lo=-1e6, hi=1e6, lo_open=False, hi_open=False, unit="mm",
+                                 help="course point coordinate"),
+    # The belly check looks at terrain this far either side of the rig: a typo of 1e9 would make it
+    # look at the whole course from every position.
+    "course.belly_clearance_mm": FieldRule(lo=0.0, hi=1000.0, hi_open=False, unit="mm",
+                                           help="lowest chassis line above the ground, rig level"),
     "terrain.accel_g": FieldRule(lo=-2.0, hi=2.0, lo_open=False, hi_open=False, optional=True, default=0.0,
                                  unit="g", help="throttle acceleration along the slope"),
 }

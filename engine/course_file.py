@@ -1,0 +1,78 @@
+"""Read a course file: ``schema = 1`` and one ``[course]`` table, nothing of the rig.
+
+A course is terrain, not rig: one file per obstacle, walked with any setup. The ``[course]`` keys
+and their checks are exactly those of a ``[course]`` inside a setup file (`engine.setup_file`),
+so a course can move between the two without an edit. Problems are one `SetupError` line naming
+the file, the line, the key and what is allowed.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Optional
+
+from .setup_file import SECTIONS, SetupError, _Reader, find_line, one_line, parse_toml, read_setup_text
+from .setup_model import SCHEMA_VERSION, Course
+
+COURSE_KEYS = ("schema", "course")
+
+
+@dataclass
+class LoadedCourse:
+    """A course as read from disk."""
+
+    path: Optional[Path]
+    course: Course
+    text: str = ""
+    warnings: list = field(default_factory=list)
+
+
+def parse_course(text: str, path: str = "<course>") -> tuple[Course, list]:
+    """Check the TOML text of a course file; return (course, warnings) or raise `SetupError`."""
+    if not text.strip():
+        raise SetupError("file is empty; a course file needs schema = 1 and a [course] table", path)
+    data = parse_toml(text, path)
+    reader = _Reader(path, text, data)
+    rig_parts = [k for k in data if k in SECTIONS and k != "course"]
+    if rig_parts:
+        raise SetupError(f"[{rig_parts[0]}] found: this is a setup file, not a course file (schema and [course] "
+                         "only); walk its own course with slopetune walk FILE", path,
+                         find_line(text, rig_parts[0]), rig_parts[0])
+    for k, v in data.items():
+        if k in COURSE_KEYS:
+            continue
+        if isinstance(v, dict):
+            reader.fail(k, f"[{k}]: unknown section; a course file holds schema and [course] only")
+        reader.warnings.append(f"{path}:{find_line(text, k) or '?'}: unknown key {k} kept but not used")
+    if "schema" not in data:
+        raise SetupError(f"schema: missing; required, schema = {SCHEMA_VERSION}", path, 1, "schema")
+    schema = data["schema"]
+    if isinstance(schema, bool) or not isinstance(schema, int) or schema < 1:
+        reader.fail("schema", f"schema = {schema!r}: must be the whole number {SCHEMA_VERSION}")
+    if schema > SCHEMA_VERSION:
+        reader.fail("schema", f"schema = {schema}: newer than this slopetune reads ({SCHEMA_VERSION}); update slopetune")
+    if "course" not in data:
+        raise SetupError("[course]: missing section; required (name, points_mm, belly_clearance_mm)", path, None,
+                         "course")
+    course = reader.course()
+    return course, [one_line(w) for w in reader.warnings]
+
+
+def load_course(path) -> LoadedCourse:
+    """Read, parse and check one course file.
+
+    Raises
+    ------
+    SetupError
+        For any file or value that cannot be used; its message is one line.
+    """
+    text, _mtime = read_setup_text(path)
+    course, warnings = parse_course(text, str(path))
+    return LoadedCourse(Path(path), course, text, warnings)
+
+
+def looks_like_course(text: str) -> bool:
+    """Cheap test for the tuner's file list: a ``[course]`` header and no rig section."""
+    heads = {line.strip() for line in text.splitlines() if line.lstrip().startswith("[")}
+    return "[course]" in heads and not any(h.startswith(f"[{s}") for h in heads for s in SECTIONS if s != "course")
