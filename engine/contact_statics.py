@@ -49,12 +49,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from .contact_rigid import BINDS, contact_columns, load_vector, solve_rigid
-from .traction import BOTH, FRONT, LIFTED, NONE, REAR
+from .traction import BOTH, FRONT, LIFTED, NONE, REAR, RIGID_STAND_IN
 from .tyre_brush import brush_psi, brush_psi_inverse
 
-# An axle given as rigid beside one with a finite stiffness is solved with this stiffness: its
-# linear range (3μ/c in σ) is then below the bisection's resolution.
-NEAR_RIGID = 1e9
+# An axle given as rigid beside one with a finite stiffness is solved with the uniform-slope solve's
+# stand-in stiffness, so both give the same numbers.
+NEAR_RIGID = RIGID_STAND_IN
 _GRID = 33  # residual samples across the bracket, plus the poles
 _POLE_GAP = 1e-9  # grid points this far (relative) either side of a pole
 _BISECT = 48  # halvings of the bracket cell; a secant step on the last cell finishes it
@@ -164,7 +164,7 @@ def _speed_ratio_for(m, stiffness, mu_s):
 
 def _poles(eq, k, q, rho, cf, cr, msf, msr):
     """``s_r`` where a normal force's denominator ``A + m B`` vanishes, for each tyre (NaN: none)."""
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         s_f = _speed_ratio_for(-eq.af / eq.bf, cf, msf)
         s_r = _speed_ratio_for(-eq.ar / eq.br, cr, msr)
     return np.stack(((rho * s_f - q) / k, s_r), axis=-1)
@@ -255,22 +255,25 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     up = (g_res[..., :-1] < 0) & (g_res[..., 1:] >= 0)
     good = np.isfinite(g_res) & (g_nf > 0) & (g_nr > 0) & np.isfinite(g_nf) & np.isfinite(g_nr)
     genuine = up & good[..., :-1] & good[..., 1:]
-    has_root = up.any(axis=-1)
-    j = np.where(genuine.any(axis=-1), np.argmax(genuine, axis=-1), np.argmax(up, axis=-1))
+    # short of drive on the physical side, and a normal force runs off to infinity before the
+    # tyres can supply it: the wind-up presses the tyre down faster than it pushes it along
+    flips = (g_nf[..., :-1] * g_nf[..., 1:] < 0) | (g_nr[..., :-1] * g_nr[..., 1:] < 0)
+    binding = up & good[..., :-1] & flips
+    has_genuine = genuine.any(axis=-1)
+    has_root = has_genuine | binding.any(axis=-1)
+    j = np.where(has_genuine, np.argmax(genuine, axis=-1), np.argmax(binding, axis=-1))
     a = np.take_along_axis(grid, j[..., None], -1)[..., 0]
     b = np.take_along_axis(grid, (j + 1)[..., None], -1)[..., 0]
     for _ in range(_BISECT):
         mid = 0.5 * (a + b)
         below = eval_at(mid)[0] < 0
         a, b = np.where(below, mid, a), np.where(below, b, mid)
-    ra, nfa, nra = eval_at(a)[:3]
-    rb, nfb, nrb = eval_at(b)[:3]
+    ra, rb = eval_at(a)[0], eval_at(b)[0]
     with np.errstate(divide="ignore", invalid="ignore"):
         s_r = np.where(np.isfinite(ra) & np.isfinite(rb) & (rb > ra), a - ra * (b - a) / (rb - ra), 0.5 * (a + b))
     s_r = np.clip(s_r, a, b)
     _, nf, nr, mf, mr, lam_f, lam_r = eval_at(s_r)
-    # a pole, not a root: a normal force changes sign (through infinity) across the last cell
-    pole = has_root & ((nfa * nfb < 0) | (nra * nrb < 0) | ~np.isfinite(nf) | ~np.isfinite(nr))
+    pole = has_root & ~has_genuine
 
     sat_f_, sat_r_ = np.abs(lam_f) >= 1.0, np.abs(lam_r) >= 1.0
     state = np.where(sat_f_ & sat_r_, BOTH, np.where(sat_f_, FRONT, np.where(sat_r_, REAR, NONE)))

@@ -318,9 +318,9 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
     """Events where the per-position states change, in course order.
 
     Channels change independently: inside / outside the model (a tyre in a V); lift (front /
-    rear / none); which axle is kinematically faster; the slip role (both grip, the faster axle
-    lets go, the slower one does, both slip, binds) among the positions on the ground, compared
-    with the last such position; belly contact.
+    rear / none); which axle is kinematically faster; the slip state among the positions on the
+    ground, compared with the last such position (a handover: the axle that is faster there now
+    lets go; hands back: the slower one does); belly contact.
     """
     state = np.asarray(state)
     outside = state == OUTSIDE
@@ -358,32 +358,29 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
     mismatch = np.asarray(mismatch, dtype=float)
     fast = np.where(np.isfinite(mismatch), np.sign(np.round(mismatch - 1.0, 12)), 0).astype(int)
     names = {1: "front", -1: "rear", 0: None}
-    lets_go = np.where(state == FRONT, 1, np.where(state == REAR, -1, 0))
-    role = np.select([state == NONE, lets_go != 0, state == BOTH],
-                     [0, np.where(lets_go == fast, 1, 2), 3], 4)  # see _role
-    g_fast, g_role = fast[grounded], role[grounded]
+    g_fast, g_state = fast[grounded], state[grounded]
     flips = (g_fast[1:] != g_fast[:-1]) & (g_fast[1:] != 0) & (g_fast[:-1] != 0)
     for k in np.flatnonzero(flips) + 1:
         i = grounded[k]
         ratio = f" (path ratio {pose.path_ratio[i]:.3f})" if pose is not None else ""
         add("windup_reverses", i, f"wind-up reverses: the {names[g_fast[k]]} runs faster{ratio}")
-    for k in np.flatnonzero(g_role[1:] != g_role[:-1]) + 1:
-        i, before, now = grounded[k], g_role[k - 1], g_role[k]
-        words = state_words(int(state[i]), names[fast[i]])
-        if now == 4:
+    for k in np.flatnonzero(g_state[1:] != g_state[:-1]) + 1:
+        i, before, now = grounded[k], g_state[k - 1], g_state[k]
+        words = state_words(int(now), names[fast[i]])
+        if now == BINDS:
             add("binds", i, words)
-        elif before == 4:
+        elif before == BINDS:
             add("unbinds", i, f"the driveline frees: {words}")
-        elif now == 3:
+        elif now == BOTH:
             add("cannot_hold", i, "cannot hold: both axles slip; the rig stalls or slides back")
-        elif before == 3:
+        elif before == BOTH:
             add("holds_again", i, f"holds again: {words}")
-        elif now == 1:
-            add("handover", i, f"handover: {words}")
-        elif now == 2:
-            add("hand_back", i, f"hands back: {words}")
-        else:
+        elif now == NONE:
             add("both_grip", i, "both axles grip (the tyres absorb the wind-up as slip)")
+        elif names[fast[i]] == ("front" if now == FRONT else "rear"):
+            add("handover", i, f"handover: {words}")
+        else:
+            add("hand_back", i, f"hands back: {words}")
 
     for i in np.flatnonzero(touch[1:] != touch[:-1]) + 1:
         if touch[i]:

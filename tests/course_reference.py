@@ -88,10 +88,11 @@ def solve_position(weight, pf, pr, cg, af_deg, ar_deg, pitch_deg, mu_f, mu_r, c_
     if s_r is None:
         # no equilibrium with the tyres gripping: both spin (short of drive even at full grip
         # forward) or both are dragged back; anything else is no finite equilibrium at all
-        if values[-1] < 0 and good(grid[-1]):
-            return "both", None, None, None, None
-        if values[0] > 0 and good(grid[0]):
-            return "both", None, None, None, None
+        for end, sign in ((-1, 1.0), (0, -1.0)):
+            if sign * values[end] < 0 and good(grid[end]):
+                # both slide at ±μ_k N; the normal forces they leave decide whether an axle lifts
+                n_f, n_r, _ = solve3(sign * mkf, sign * mkr)
+                return ("both" if n_f > 0 and n_r > 0 else "lifted"), None, None, None, None
         return None, None, None, None, None
     mf, mr, lf, lr = forces(s_r)
     n_f, n_r, _ = solve3(mf, mr)

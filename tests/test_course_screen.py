@@ -16,6 +16,16 @@ from slopetune.tui.course_screen import CourseChart, CourseScreen, CourseStatus,
 
 ROOT = Path(__file__).resolve().parent.parent
 KESTREL = ROOT / "setups" / "course-kestrel-knuckle.toml"
+RIG = ROOT / "setups" / "marmot-overdrive.toml"
+
+
+def _kestrel_setup():
+    """The demo rig with the Kestrel Knuckle course file's course as its own."""
+    import dataclasses
+
+    from slopetune.engine.course_file import load_course
+
+    return dataclasses.replace(load_setup(RIG).setup, course=load_course(KESTREL).course)
 
 
 class Host(App):
@@ -43,7 +53,7 @@ def test_arrows_step_and_n_jumps_to_the_next_event():
 
 
 async def _arrows_step_and_n_jumps():
-    app = Host(load_setup(KESTREL).setup, ascii_only=True)
+    app = Host(_kestrel_setup(), ascii_only=True)
     async with app.run_test(size=(80, 24)) as pilot:
         screen = app.screen
         await _ready(pilot, screen)
@@ -74,7 +84,7 @@ def test_ascii_view_and_chart_are_latin_1():
 
 
 async def _ascii_view_and_chart():
-    app = Host(load_setup(KESTREL).setup, ascii_only=True)
+    app = Host(_kestrel_setup(), ascii_only=True)
     async with app.run_test(size=(80, 24)) as pilot:
         screen = app.screen
         await _ready(pilot, screen)
@@ -92,7 +102,7 @@ async def _ascii_view_and_chart():
 
 def test_side_view_puts_the_wheels_on_the_ground():
     """On level ground the wheel outlines' lowest cells sit right above the surface row."""
-    walk_setup = load_setup(KESTREL).setup
+    walk_setup = _kestrel_setup()
     from slopetune.engine.course_walk import walk_course
 
     walk = walk_course(walk_setup, 5.0)
@@ -104,16 +114,85 @@ def test_side_view_puts_the_wheels_on_the_ground():
     assert any("=" in r for r in rows)
 
 
-def test_setup_without_a_course_says_so_and_closes():
+def test_setup_without_a_course_offers_course_files_and_esc_closes():
+    """No [course] in the setup: the view says so and offers the course files of the setups folder
+    (issue 13 item 7); Esc on the list closes the view."""
     asyncio.run(_without_a_course())
 
 
 async def _without_a_course():
-    app = Host(load_setup(ROOT / "setups" / "marmot-stock.toml").setup)
+    import os
+
+    from slopetune.tui.screens.course_pick import CoursePickScreen
+
+    old = os.getcwd()
+    os.chdir(ROOT)
+    try:
+        app = Host(load_setup(ROOT / "setups" / "marmot-stock.toml").setup,
+                   setup_path=ROOT / "setups" / "marmot-stock.toml")
+        async with app.run_test(size=(80, 24)) as pilot:
+            for _ in range(50):
+                await pilot.pause()
+                if isinstance(app.screen, CoursePickScreen) and app.screen.entries:
+                    break
+            picker = app.screen
+            assert isinstance(picker, CoursePickScreen)
+            names = {e.name for e in picker.entries}
+            assert {"Bramble Steps", "Kestrel Knuckle"} <= names
+            assert all(e.path is None or e.path.name.startswith("course-") for e in picker.entries)
+            await pilot.press("escape")
+            await pilot.pause(0.2)
+            assert app.closed
+    finally:
+        os.chdir(old)
+
+
+def test_picking_a_course_file_walks_it():
+    asyncio.run(_pick_and_walk())
+
+
+async def _pick_and_walk():
+    import os
+
+    from slopetune.tui.screens.course_pick import CoursePickScreen
+
+    old = os.getcwd()
+    os.chdir(ROOT)
+    try:
+        app = Host(load_setup(RIG).setup, setup_path=RIG, ascii_only=True)
+        async with app.run_test(size=(80, 24)) as pilot:
+            for _ in range(50):
+                await pilot.pause()
+                if isinstance(app.screen, CoursePickScreen) and app.screen.entries:
+                    break
+            target = next(i for i, e in enumerate(app.screen.entries) if e.name == "Kestrel Knuckle")
+            app.screen.query_one("OptionList").highlighted = target
+            await pilot.press("enter")
+            screen = app.screen
+            assert isinstance(screen, CourseScreen)
+            await _ready(pilot, screen)
+            assert screen.walk.course.name == "Kestrel Knuckle"
+            assert "Kestrel Knuckle" in str(screen.query_one("#course-title").render())
+            words = screen.query_one(CourseStatus).words()
+            assert all(len(line) <= 78 for line in words.splitlines())
+            assert "path ratio" in words.lower()
+    finally:
+        os.chdir(old)
+
+
+def test_force_chart_is_readable_at_80x24():
+    """Issue 13 item 7: the course view's force chart gets at least 6 plot rows at 80x24 (it had 3)."""
+    asyncio.run(_chart_rows())
+
+
+async def _chart_rows():
+    app = Host(_kestrel_setup(), ascii_only=True)
     async with app.run_test(size=(80, 24)) as pilot:
+        screen = app.screen
+        await _ready(pilot, screen)
         await pilot.pause()
-        words = str(app.screen.query_one(CourseStatus).render())
-        assert "no [course]" in words
-        await pilot.press("escape")
-        await pilot.pause(0.2)
-        assert app.closed
+        chart = screen.query_one(CourseChart)
+        assert chart.size.height >= 10
+        lines = chart.render().plain.splitlines()
+        plot_rows = [ln for ln in lines if ln.strip().startswith(("|", "+", "2", "1", "0")) and "|" in ln]
+        assert len(plot_rows) >= 6

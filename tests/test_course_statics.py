@@ -1,14 +1,19 @@
-"""Two-contact statics (engine.contact_statics) against the uniform-slope model, scipy and a hand case.
+"""Two-contact statics (engine.contact_statics, engine.contact_rigid) against independent checks.
 
 Sources named beside each check:
-- uniform slope: the contact statics must reduce exactly to `engine.analyse` (Gillespie,
-  *Fundamentals of Vehicle Dynamics*, ch. 2 loads; the wind-up rule of `engine.traction`);
+- uniform slope: the contact statics must reduce exactly to MODEL sections 2 and 5: the grade-load
+  equations written out here (Gillespie, *Fundamentals of Vehicle Dynamics*, ch. 2) and the
+  onset slip solve `engine.traction.slip_traction_state` (brush model, Pacejka, *Tire and Vehicle
+  Dynamics*, 3rd ed., 2012, ch. 3; itself tested against Pacejka's curve in test_tyre_slip.py);
+- an independent per-position solver (tests/course_reference.py: other equations, a plain scan
+  and `scipy.optimize.brentq`, one position at a time);
 - planar rigid-body equilibrium, three equations (Meriam & Kraige, *Engineering Mechanics:
   Statics*, ch. 3), written out again here and solved with `scipy.linalg.solve`;
 - Coulomb friction bounds |F| <= μ_s N while gripping, F = ±μ_k N while sliding (Serway &
   Beichner, 5th ed., ch. 5);
-- which axle lets go first: the feasible interval of the friction cone along the line of
-  equilibrium solutions, found here with `scipy.linalg.null_space` and plain inequalities.
+- rigid limit: which axle lets go first from the feasible interval of the friction cone along the
+  line of equilibria (`scipy.linalg.null_space`), and "binds" where maximising the wind-up is an
+  unbounded linear program (`scipy.optimize.linprog`).
 """
 
 from __future__ import annotations
@@ -18,15 +23,28 @@ import math
 import numpy as np
 import pytest
 import scipy.linalg
-from hypothesis import assume, given
+import scipy.optimize
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from slopetune.engine import analyse
-from slopetune.engine.contact_statics import solve_contacts
-from slopetune.engine.traction import BOTH, FRONT, LIFTED, NONE, REAR
+from slopetune.engine.contact_rigid import BINDS
+from slopetune.engine.contact_statics import solve_contacts as solve_slip
+from slopetune.engine.traction import BOTH, FRONT, LIFTED, NONE, REAR, STATES, slip_traction_state, traction_state
 
-from conftest import rig_setups
+from course_reference import solve_position
+
+RIGID = math.inf
+_OD_RATIO = {"front": 1.05, "rear": 0.95, None: 1.0}
+
+
+def solve_contacts(weight, front_arm, rear_arm, af, ar, pitch, mu_f, mu_r, od, crr=0.0, accel=0.0):
+    """The rigid limit with contact points given relative to the CG (CG at the origin) and the
+    overdriven axle named: K/ρ above, below or at 1."""
+    front_arm, rear_arm = np.atleast_2d(np.asarray(front_arm, float)), np.atleast_2d(np.asarray(rear_arm, float))
+    n = front_arm.shape[0]
+    return solve_slip(weight, front_arm, rear_arm, np.zeros((n, 2)), af, ar, pitch, mu_f, mu_r, RIGID, RIGID,
+                      np.full(n, _OD_RATIO[od]), np.zeros(n), np.ones(n), crr, accel)
 
 
 def _uniform_arms(slope_deg, wheelbase_mm, b_mm, h_mm):
@@ -38,45 +56,144 @@ def _uniform_arms(slope_deg, wheelbase_mm, b_mm, h_mm):
     return wheelbase_mm * along - cg, -cg
 
 
-def _model_inputs(setup):
-    a = analyse(setup, [0.0], load="climb")
-    fs, fk, rs, rk = setup.grip.axle_mu()
-    return a, (fs, fk), (rs, rk), a.overdrive.overdriven_axle, setup.grip.rolling_resistance
+# ----- uniform slope: exact reduction to sections 2 and 5 ---------------------------------------
+
+uniform = st.fixed_dictionaries({
+    "slope": st.floats(-60.0, 70.0), "wheelbase": st.floats(150.0, 500.0), "bias": st.floats(0.25, 0.75),
+    "h": st.floats(30.0, 200.0), "weight": st.floats(500.0, 5000.0), "mu_f": st.floats(0.4, 1.5),
+    "mu_r": st.floats(0.4, 1.5), "k_share": st.floats(0.6, 1.0), "crr": st.sampled_from([0.0, 0.03]),
+    "accel": st.sampled_from([0.0, 0.2]), "c_f": st.one_of(st.just(RIGID), st.floats(5.0, 60.0)),
+    "c_r": st.one_of(st.just(RIGID), st.floats(5.0, 60.0)), "k": st.floats(0.8, 1.3),
+})
 
 
-# ----- uniform slope: exact reduction to engine.analyse ---------------------------------------
+def _section_5(g, slope):
+    """Sections 2 and 5 written out: grade loads (Gillespie ch. 2) and the onset slip solve."""
+    th = math.radians(slope)
+    w, L, b, h = g["weight"], g["wheelbase"], g["bias"] * g["wheelbase"], g["h"]
+    nf = w * (b * math.cos(th) - h * math.sin(th) - h * g["accel"]) / L
+    nr = w * math.cos(th) - nf
+    f_req = w * (math.sin(th) + g["crr"] * math.cos(th) + g["accel"])
+    mu_f, mu_r = (g["mu_f"], g["mu_f"] * g["k_share"]), (g["mu_r"], g["mu_r"] * g["k_share"])
+    c_f, c_r = max(g["c_f"], 3.5 * g["mu_f"]), max(g["c_r"], 3.5 * g["mu_r"])
+    return nf, nr, slip_traction_state(nf, nr, f_req, mu_f, mu_r, c_f, c_r, g["k"]), mu_f, mu_r, c_f, c_r
 
-@given(setup=rig_setups(), slopes=st.lists(st.floats(-70.0, 70.0), min_size=1, max_size=8))
-def test_uniform_slope_matches_the_slope_model(setup, slopes):
-    """Both contacts on one plane: same states and forces as engine.analyse to 1e-9 of the weight."""
-    a, mu_f, mu_r, od, crr = _model_inputs(setup)
-    sweep = a.at(slopes)
-    rig = a.rig
-    t = sweep.traction
-    w = rig.mass_g
-    # states can differ only on a boundary (ties broken by rounding): keep clear of them
-    (msf, _), (msr, _) = mu_f, mu_r
-    margin = np.abs(msf * sweep.front_normal_g - msr * sweep.rear_normal_g - sweep.required_g)
-    if od == "rear":
-        margin = np.abs(msr * sweep.rear_normal_g - msf * sweep.front_normal_g - sweep.required_g)
-    clear = (np.abs(sweep.front_normal_g) > 1e-7 * w) & (np.abs(sweep.rear_normal_g) > 1e-7 * w)
-    clear &= np.where(np.isnan(t.reserve_g), True, np.abs(t.reserve_g) > 1e-7 * w)
-    if od is not None:
-        clear &= margin > 1e-7 * w
-    assume(clear.all())
 
-    front_arm, rear_arm = _uniform_arms(sweep.slope_deg, rig.wheelbase_mm, rig.cg_from_rear_mm, rig.cg_height_mm)
-    out = solve_contacts(w, front_arm, rear_arm, sweep.slope_deg, sweep.slope_deg, sweep.slope_deg,
-                         mu_f, mu_r, od, crr, a.accel_g)
-    assert out.traction.state.tolist() == t.state.tolist()
-    tol = dict(rtol=1e-9, atol=1e-9 * w)
-    assert_allclose(out.front_normal_g, sweep.front_normal_g, **tol)
-    assert_allclose(out.rear_normal_g, sweep.rear_normal_g, **tol)
+@given(g=uniform)
+def test_uniform_slope_reduces_to_sections_2_and_5(g):
+    """Both contacts on one plane (ρ = 1, no pitch term): same normal forces as the grade-load
+    equations and the same state, tyre forces, slips, grip used, wind-up and reserve as
+    `slip_traction_state`, to 1e-6 of the weight; a state may differ only on a transition (where a
+    slope 1e-6° away gives the section 5 solve the other state)."""
+    slope = g["slope"]
+    nf, nr, ts, mu_f, mu_r, c_f, c_r = _section_5(g, slope)
+    w = g["weight"]
+    front_arm, rear_arm = _uniform_arms(np.array([slope]), g["wheelbase"], g["bias"] * g["wheelbase"], g["h"])
+    out = solve_slip(w, front_arm, rear_arm, np.zeros((1, 2)), [slope], [slope], [slope], mu_f, mu_r, c_f, c_r,
+                     [g["k"]], [0.0], [1.0], g["crr"], g["accel"])
+    t = out.traction
+    if int(t.state[0]) != int(ts.state):
+        near = {int(_section_5(g, slope + d)[2].state) for d in (-1e-6, 1e-6)}
+        assert int(t.state[0]) in near, (STATES[int(t.state[0])], STATES[int(ts.state)])
+        return
+    tol = dict(rtol=1e-9, atol=1e-6 * w)
+    if int(ts.state) != LIFTED:
+        assert_allclose(out.front_normal_g[0], nf, **tol)
+        assert_allclose(out.rear_normal_g[0], nr, **tol)
     for name in ("front_force_g", "rear_force_g", "windup_g", "reserve_g"):
-        assert_allclose(getattr(out.traction, name), getattr(t, name), equal_nan=True, err_msg=name, **tol)
+        assert_allclose(getattr(t, name)[0], float(getattr(ts, name)), equal_nan=True, err_msg=name, **tol)
+    for name in ("front_slip_pct", "rear_slip_pct", "front_grip_used", "rear_grip_used"):
+        assert_allclose(getattr(t, name)[0], float(getattr(ts, name)), equal_nan=True, err_msg=name,
+                        rtol=1e-6, atol=1e-6)
 
 
-# ----- general geometry: equilibrium (scipy) and friction bounds --------------------------------
+@pytest.mark.parametrize("slope", [0.0, 15.0, 30.0, 44.0])
+def test_no_mismatch_is_the_grip_proportional_split_up_to_tan_mu(slope):
+    """K = ρ, equal mu and stiffness, no rolling resistance: both grip with the grip-proportional
+    split F_i = F_req μ N_i/(μ N_f + μ N_r) up to tan θ = μ = 1 (Gillespie ch. 2, traction-limited
+    grade); at 46° it cannot hold."""
+    w, L, b, h = 2000.0, 300.0, 170.0, 90.0
+    th = math.radians(slope)
+    front_arm, rear_arm = _uniform_arms(np.array([slope]), L, b, h)
+    out = solve_slip(w, front_arm, rear_arm, np.zeros((1, 2)), [slope], [slope], [slope], (1.0, 0.8), (1.0, 0.8),
+                     20.0, 20.0, [1.0], [0.0], [1.0])
+    nf = w * (b * math.cos(th) - h * math.sin(th)) / L
+    assert int(out.traction.state[0]) == NONE
+    assert_allclose(out.traction.front_force_g[0], w * math.sin(th) * nf / (w * math.cos(th)), rtol=1e-9, atol=1e-6)
+    out = solve_slip(w, *_uniform_arms(np.array([46.0]), L, b, h), np.zeros((1, 2)), [46.0], [46.0], [46.0],
+                     (1.0, 0.8), (1.0, 0.8), 20.0, 20.0, [1.0], [0.0], [1.0])
+    assert int(out.traction.state[0]) == BOTH
+
+
+# ----- uneven ground: an independent solver and the equilibrium equations --------------------------
+
+def _random_pose(rng):
+    w = 2000.0
+    length = rng.uniform(200, 400)
+    b, h = rng.uniform(0.3, 0.7) * length, rng.uniform(40, 150)
+    chord = math.radians(rng.uniform(-30, 40))
+    along, up = np.array([math.cos(chord), math.sin(chord)]), np.array([-math.sin(chord), math.cos(chord)])
+    mu = rng.uniform(0.6, 1.2)
+    mu_r = mu * rng.uniform(0.8, 1.2)
+    return dict(weight=w, pf=length * along, pr=np.zeros(2), cg=b * along + h * up,
+                af=rng.uniform(-40, 60), ar=rng.uniform(-40, 60), pitch=math.degrees(chord),
+                mu_f=(mu, 0.8 * mu), mu_r=(mu_r, 0.8 * mu_r), c_f=rng.uniform(4, 30), c_r=rng.uniform(4, 30),
+                k=rng.uniform(0.9, 1.2), q=rng.uniform(-0.02, 0.02), rho=rng.uniform(0.8, 1.3), crr=0.03)
+
+
+def test_uneven_ground_agrees_with_an_independent_per_position_solver():
+    """300 random poses (seeded): the vectorised solve and tests/course_reference.py (different
+    equations, plain scan and brentq per position) give the same state and, where a tyre grips,
+    the same forces to 1e-6 of the weight. Poses where the plain scan finds no finite equilibrium
+    are left to the binds tests below."""
+    rng = np.random.default_rng(20261202)
+    poses = [_random_pose(rng) for _ in range(300)]
+    stack = {k: np.array([p[k] for p in poses]) for k in ("pf", "pr", "cg", "af", "ar", "pitch", "k", "q", "rho")}
+    compared = 0
+    for p in poses:
+        out = solve_slip(p["weight"], p["pf"][None], p["pr"][None], p["cg"][None], [p["af"]], [p["ar"]], [p["pitch"]],
+                         p["mu_f"], p["mu_r"], p["c_f"], p["c_r"], [p["k"]], [p["q"]], [p["rho"]], p["crr"])
+        ref = solve_position(p["weight"], p["pf"], p["pr"], p["cg"], p["af"], p["ar"], p["pitch"], p["mu_f"],
+                             p["mu_r"], p["c_f"], p["c_r"], p["k"], p["q"], p["rho"], p["crr"])
+        if ref[0] is None:
+            continue
+        compared += 1
+        assert STATES[int(out.traction.state[0])] == ref[0], p
+        if ref[1] is not None:
+            t = out.traction
+            got = [out.front_normal_g[0], out.rear_normal_g[0], t.front_force_g[0], t.rear_force_g[0]]
+            assert_allclose(got, ref[1:], rtol=1e-7, atol=1e-6 * p["weight"])
+    assert compared > 250
+    assert stack["k"].size == 300
+
+
+def test_gripping_states_satisfy_the_three_equilibrium_equations():
+    """Every state where both or one tyre grips satisfies Σx, Σz and Σ moments about the CG
+    (Meriam & Kraige ch. 3, written out here), the gripping tyre within μ_s N, a sliding one at
+    ±μ_k N (Serway & Beichner ch. 5)."""
+    rng = np.random.default_rng(7)
+    checked = 0
+    for _ in range(400):
+        p = _random_pose(rng)
+        out = solve_slip(p["weight"], p["pf"][None], p["pr"][None], p["cg"][None], [p["af"]], [p["ar"]], [p["pitch"]],
+                         p["mu_f"], p["mu_r"], p["c_f"], p["c_r"], [p["k"]], [p["q"]], [p["rho"]], p["crr"])
+        state = int(out.traction.state[0])
+        if state not in (NONE, FRONT, REAR):
+            continue
+        checked += 1
+        t = out.traction
+        x = np.array([out.front_normal_g[0], t.front_force_g[0], out.rear_normal_g[0], t.rear_force_g[0]])
+        a = _equilibrium_rows(p["pf"] - p["cg"], p["pr"] - p["cg"], math.radians(p["af"]), math.radians(p["ar"]),
+                              p["crr"])
+        assert_allclose(a @ x, _loads(p["weight"], math.radians(p["pitch"]), 0.0), atol=1e-6 * p["weight"])
+        assert x[0] > 0 and x[2] > 0
+        for i, (ms, mk), slides in ((0, p["mu_f"], state == FRONT), (2, p["mu_r"], state == REAR)):
+            if slides:
+                assert_allclose(abs(x[i + 1]), mk * x[i], rtol=1e-9)
+            else:
+                assert abs(x[i + 1]) <= ms * x[i] * (1 + 1e-9)
+    assert checked > 200
+
 
 def _equilibrium_rows(front_arm, rear_arm, alpha_f, alpha_r, crr):
     """3x4 matrix of Σx, Σz and Σ moment about the CG for (N_f, F_f, N_r, F_r), from the model:
@@ -291,3 +408,73 @@ def test_no_overdrive_is_the_grip_proportional_split(slope):
     else:
         assert int(out.traction.state[0]) == BOTH
         assert_allclose(out.traction.front_force_g[0], 0.6 * nf, rtol=1e-12)
+
+
+# ----- rigid limit: the Coulomb rule, and binds --------------------------------------------------
+
+@given(g=uniform)
+def test_rigid_limit_on_a_plane_is_the_coulomb_rule(g):
+    """Stiffness "rigid" on both axles, one plane: exactly `engine.traction.traction_state` (the
+    rigid rule, fast axle first ⇔ μ_s,fast N_fast − μ_s,slow N_slow < F_req), to 1e-9 of W."""
+    slope, w = g["slope"], g["weight"]
+    th = math.radians(slope)
+    L, b, h = g["wheelbase"], g["bias"] * g["wheelbase"], g["h"]
+    nf = w * (b * math.cos(th) - h * math.sin(th) - h * g["accel"]) / L
+    nr = w * math.cos(th) - nf
+    f_req = w * (math.sin(th) + g["crr"] * math.cos(th) + g["accel"])
+    mu_f, mu_r = (g["mu_f"], g["mu_f"] * g["k_share"]), (g["mu_r"], g["mu_r"] * g["k_share"])
+    od = "front" if g["k"] > 1 else ("rear" if g["k"] < 1 else None)
+    fast_margin = (mu_f[0] * nf - mu_r[0] * nr) if od == "front" else (mu_r[0] * nr - mu_f[0] * nf)
+    assume(od is None or abs(fast_margin - f_req) > 1e-7 * w)
+    assume(min(abs(nf), abs(nr)) > 1e-7 * w)
+    ref = traction_state(nf, nr, f_req, mu_f, mu_r, od)
+    assume(np.isnan(ref.reserve_g) or abs(float(ref.reserve_g)) > 1e-7 * w)
+    front_arm, rear_arm = _uniform_arms(np.array([slope]), L, b, h)
+    out = solve_slip(w, front_arm, rear_arm, np.zeros((1, 2)), [slope], [slope], [slope], mu_f, mu_r, RIGID, RIGID,
+                     [g["k"]], [0.0], [1.0], g["crr"], g["accel"])
+    assert int(out.traction.state[0]) == int(ref.state)
+    for name in ("front_force_g", "rear_force_g", "windup_g", "reserve_g"):
+        assert_allclose(getattr(out.traction, name)[0], float(getattr(ref, name)), rtol=1e-9, atol=1e-9 * w,
+                        equal_nan=True, err_msg=name)
+
+
+def _wind_up_is_unbounded(a, b, fast, mu_f, mu_r):
+    """scipy.optimize.linprog: maximise the fast axle's force over the equilibria inside both
+    friction cones. Returns True (unbounded: binds), False (bounded) or None (no such equilibrium)."""
+    # variables (N_f, F_f, N_r, F_r); cones −μ N <= F <= μ N, N >= 0
+    a_ub = np.array([[-mu_f, 1, 0, 0], [-mu_f, -1, 0, 0], [0, 0, -mu_r, 1], [0, 0, -mu_r, -1]], float)
+    c = np.zeros(4)
+    c[fast + 1] = -1.0
+    res = scipy.optimize.linprog(c, A_ub=a_ub, b_ub=np.zeros(4), A_eq=a, b_eq=b,
+                                 bounds=[(0, None), (None, None), (0, None), (None, None)], method="highs")
+    if res.status == 3:
+        return True
+    if res.status == 0:
+        return False
+    return None
+
+
+def test_binds_exactly_where_the_wind_up_is_unbounded():
+    """4,000 random contact geometries (seeded), rigid tyres: the state is `binds` exactly where
+    the linear program "maximise the wind-up pair over the equilibria within both friction cones"
+    is unbounded (no friction limit is ever reached, all four checked), and never "both grip"."""
+    rng = np.random.default_rng(20261203)
+    n = 2000
+    binds = bounded = 0
+    for od, fast in (("front", 0), ("rear", 2)):
+        af, ar = rng.uniform(-60.0, 88.0, n), rng.uniform(-60.0, 88.0, n)
+        arm_f = np.stack((rng.uniform(60, 250, n), rng.uniform(-150, -20, n)), -1)
+        arm_r = np.stack((rng.uniform(-250, -60, n), rng.uniform(-150, -20, n)), -1)
+        pitch = rng.uniform(-40, 40, n)
+        mu_f, mu_r = (1.0, 0.8), (0.9, 0.72)
+        out = solve_contacts(1000.0, arm_f, arm_r, af, ar, pitch, mu_f, mu_r, od, 0.03)
+        for k in range(n):
+            a = _equilibrium_rows(arm_f[k], arm_r[k], math.radians(af[k]), math.radians(ar[k]), 0.03)
+            lp = _wind_up_is_unbounded(a, _loads(1000.0, math.radians(pitch[k]), 0.0), fast, mu_f[0], mu_r[0])
+            state = int(out.traction.state[k])
+            if lp is None or state == LIFTED:
+                continue
+            assert (state == BINDS) == lp, (od, af[k], ar[k], arm_f[k], arm_r[k], pitch[k])
+            binds += lp
+            bounded += not lp
+    assert binds > 20 and bounded > 1000  # both regimes reached

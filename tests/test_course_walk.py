@@ -23,6 +23,7 @@ from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 from slopetune.engine import Course, analyse, load_setup
+from slopetune.engine.course_file import load_course
 from slopetune.engine.course_walk import walk_course
 from slopetune.engine.traction import BOTH, FRONT, LIFTED, REAR
 from slopetune.tui.cli import main
@@ -31,6 +32,7 @@ from conftest import rig_setups
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMOS = sorted((ROOT / "setups").glob("course-*.toml"))
+RIG = ROOT / "setups" / "marmot-overdrive.toml"
 
 
 def _with_course(setup, points, belly=40.0, load="climb"):
@@ -104,10 +106,12 @@ def test_crest_front_on_flat_rear_on_a_steep_face():
             continue  # no equilibrium: the rig stalls or slides back
         assert_allclose(total, 0.0, atol=1e-8 * w)
         assert abs(moment) < 1e-8 * w * 300.0
-        slipping, gripping = ((t.front_force_g[i], fk * walk.front_normal_g[i]),
+        # the axle that lets go slides forward if it is the faster one here (K/ρ, MODEL §6), else back
+        sign = 1.0 if walk.overdriven_here[i] == ("front" if state == FRONT else "rear") else -1.0
+        slipping, gripping = ((t.front_force_g[i], sign * fk * walk.front_normal_g[i]),
                               (t.rear_force_g[i], rs * walk.rear_normal_g[i]))
-        if state == REAR:  # the rear is dragged back, the overdriven front grips
-            slipping = (t.rear_force_g[i], -rk * walk.rear_normal_g[i])
+        if state == REAR:
+            slipping = (t.rear_force_g[i], sign * rk * walk.rear_normal_g[i])
             gripping = (t.front_force_g[i], fs * walk.front_normal_g[i])
         assert_allclose(slipping[0], slipping[1], rtol=1e-9)
         assert abs(gripping[0]) <= gripping[1] * (1 + 1e-12)
@@ -165,8 +169,8 @@ def test_kestrel_knuckle_states_worked_by_hand():
     - face, atan(314/220) = 55.0°: even all the grip, at most 1.05 W cos θ, is short of
       W (sin θ + 0.03 cos θ), since tan 55° = 1.43 > 1.02: both slip ("cannot_hold" before it).
     """
-    setup = load_setup(ROOT / "setups" / "course-kestrel-knuckle.toml").setup
-    walk = walk_course(setup, 5.0)
+    setup = load_setup(RIG).setup
+    walk = walk_course(setup, 5.0, course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
     p = walk.pose
     face, ramp = math.degrees(math.atan2(314, 220)), math.degrees(math.atan2(213, 400))
     on_face = (np.abs(p.front_angle_deg - face) < 1e-6) & (np.abs(p.rear_angle_deg - face) < 1e-6)
@@ -199,45 +203,92 @@ def test_positions_with_no_ground_for_the_front_are_lifted():
 # ----- the command ----------------------------------------------------------------------------
 
 def test_walk_text_reads_at_80_columns(capsys):
-    code = main(["walk", str(ROOT / "setups" / "course-kestrel-knuckle.toml")])
+    code = main(["walk", str(RIG), "--course", str(ROOT / "setups" / "course-kestrel-knuckle.toml")])
     out = capsys.readouterr().out
     assert code == 0
     assert max(len(line) for line in out.splitlines()) <= 80
     assert "handover" in out and "cannot hold" in out and "belly touches" in out
+    assert "wind-up reverses" in out and "Path ratio" in out and "hands clear" in out
 
 
 def test_walk_json(capsys):
     path = ROOT / "setups" / "course-bramble-steps.toml"
-    assert main(["walk", str(path), "--json", "--step", "10"]) == 0
+    assert main(["walk", str(RIG), "--course", str(path), "--json", "--step", "10"]) == 0
     data = json.loads(capsys.readouterr().out)
-    walk = walk_course(load_setup(path).setup, 10.0)
+    walk = walk_course(load_setup(RIG).setup, 10.0, course=load_course(path).course)
     assert len(data["positions"]) == len(walk)
     assert data["positions"][3]["rear_x_mm"] == pytest.approx(30.0)
     assert [e["kind"] for e in data["events"]] == [e.kind for e in walk.events]
     assert {"pitch_deg", "front_angle_deg", "rear_angle_deg", "front_normal_g", "rear_force_g", "slipping",
-            "belly_touch"} <= set(data["positions"][0])
+            "belly_touch", "path_ratio", "front_grip_used", "rear_grip_used", "front_slip_pct", "rear_slip_pct",
+            "speed_ratio"} <= set(data["positions"][0])
+    assert {row["slipping"] for row in data["positions"]} <= {"none", "front", "rear", "both", "lifted", "binds",
+                                                              "outside"}
 
 
 @pytest.mark.parametrize("args, words", [
-    (["setups/marmot-stock.toml"], "no [course]"),
-    (["setups/course-bramble-steps.toml", "--step", "0"], "--step"),
-    (["setups/course-bramble-steps.toml", "--step", "nan"], "--step"),
-    (["setups/course-bramble-steps.toml", "--step", "1e-6"], "positions"),
+    (["setups/marmot-stock.toml"], "no course to walk"),
+    (["setups/course-bramble-steps.toml"], "a course file"),
+    (["setups/marmot-stock.toml", "--course", "setups/marmot-overdrive.toml"], "not a course file"),
+    (["setups/marmot-stock.toml", "--course", "setups/course-bramble-steps.toml", "--step", "0"], "--step"),
+    (["setups/marmot-stock.toml", "--course", "setups/course-bramble-steps.toml", "--step", "nan"], "--step"),
+    (["setups/marmot-stock.toml", "--course", "setups/course-bramble-steps.toml", "--step", "1e-6"], "positions"),
+    (["setups/marmot-stock.toml", "--course", "setups/course-bramble-steps.toml", "--step", "5e-324"], "positions"),
     (["no-such-file.toml"], "no such file"),
 ])
 def test_walk_bad_input_is_one_line_exit_2(args, words, capsys, monkeypatch):
+    """Issue 12 item 6 (a subnormal step) and the course-file mix-ups: one line, exit 2."""
     monkeypatch.chdir(ROOT)
     assert main(["walk", *args]) == 2
     err = capsys.readouterr().err.strip()
     assert len(err.splitlines()) == 1 and words in err
 
 
+def _course_file(tmp_path, points, belly=44, name="c.toml"):
+    path = tmp_path / name
+    path.write_text(f"schema = 1\n\n[course]\nname = \"test\"\npoints_mm = {points}\n"
+                    f"belly_clearance_mm = {belly}\n")
+    return path
+
+
 def test_course_shorter_than_the_wheelbase_names_the_field(tmp_path, capsys):
-    text = (ROOT / "setups" / "course-bramble-steps.toml").read_text()
-    start = text.index("points_mm = [")
-    end = text.index("]\n", text.index("[1120, 92]")) + 2
-    short = tmp_path / "short.toml"
-    short.write_text(text[:start] + "points_mm = [[0, 0], [200, 0]]\n" + text[end:])
-    assert main(["walk", str(short)]) == 2
+    short = _course_file(tmp_path, "[[0, 0], [200, 0]]", name="short.toml")
+    assert main(["walk", str(RIG), "--course", str(short)]) == 2
     err = capsys.readouterr().err
     assert "course.points_mm" in err and "short.toml:" in err
+
+
+@pytest.mark.parametrize("points, belly, words", [
+    ("[[0, 0], [1e308, 0]]", 44, "coordinate"),
+    ("[[-1.7e308, 0], [0, 1e308]]", 44, "coordinate"),
+    ("[[0, 0], [1000, 0]]", 1e9, "belly_clearance_mm"),
+    ("[[0, 0], [1000, 0]]", 0, "belly_clearance_mm"),
+])
+def test_absurd_courses_are_refused_in_one_line(tmp_path, capsys, points, belly, words):
+    """Issue 12 items 6 and 7: coordinates near ±1e308 and an unbounded belly clearance are
+    refused by the loader (one line naming the key, exit 2) before any arithmetic."""
+    path = _course_file(tmp_path, points, belly)
+    assert main(["walk", str(RIG), "--course", str(path)]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and words in err and "c.toml:" in err
+
+
+def test_step_longer_than_the_course_says_so(capsys):
+    code = main(["walk", str(RIG), "--course", str(ROOT / "setups" / "course-kestrel-knuckle.toml"),
+                 "--step", "5000"])
+    captured = capsys.readouterr()
+    assert code == 0 and "longer than" in captured.err and "1 positions" in captured.out
+
+
+def test_a_course_inside_the_setup_still_walks(tmp_path, capsys):
+    """A [course] table inside a setup file (format 1 as before) walks without --course, and
+    gives the same walk as the same table in a course file."""
+    course_text = (ROOT / "setups" / "course-kestrel-knuckle.toml").read_text()
+    table = course_text[course_text.index("[course]"):]
+    inside = tmp_path / "with-course.toml"
+    inside.write_text(RIG.read_text() + "\n" + table)
+    assert main(["walk", str(inside), "--json"]) == 0
+    a = json.loads(capsys.readouterr().out)
+    assert main(["walk", str(RIG), "--course", str(ROOT / "setups" / "course-kestrel-knuckle.toml"), "--json"]) == 0
+    b = json.loads(capsys.readouterr().out)
+    assert a["positions"] == b["positions"] and a["events"] == b["events"]

@@ -401,7 +401,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
             ("Toggle units", "Metric or imperial display (file stays metric)", self.action_toggle_units),
             ("Toggle slope range", "Climbs only, or descents too", self.action_toggle_range),
             ("Measure", "Scale readings to front bias, CG height and mu", self.action_measure),
-            ("Course view", "Walk the rig over the setup's course", self.action_course),
+            ("Course view", "Walk the rig over a course (its own or a course file)", self.action_course),
             ("Plan", "Let the planner suggest a setup", self.action_plan),
             ("Headings", "Steepest face from every direction; wheel loads", self.action_headings),
             ("Help", "Keys, chart, flags and cautions", self.action_help),

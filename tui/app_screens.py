@@ -78,7 +78,8 @@ class ScreenActions:
 
     def action_course(self) -> None:
         """Walk the rig over the setup's course (front and rear on different ground)."""
-        self._push("slopetune.tui.course_screen", "CourseScreen", lambda cls: cls(self.setup), None, "the course view")
+        self._push("slopetune.tui.course_screen", "CourseScreen", lambda cls: cls(self.setup, setup_path=self.path), None,
+                   "the course view")
 
     def action_headings(self) -> None:
         """Tip, wheel lift and hold angle at every heading across a face; brings a new heading back."""

@@ -1,4 +1,7 @@
-"""The course view: the rig walked over the setup's [course], stepped with the arrow keys.
+"""The course view: the rig walked over a course, stepped with the arrow keys.
+
+The course is the setup's own [course], or one picked from the course files of the setup's folder
+and the current folder (`o`, or at once when the setup has none).
 
 A side view of the terrain with the rig (wheels, chassis line, CG) at the current position, the
 status words for that position, and the axle loads along the whole course as a chart with a
@@ -36,7 +39,7 @@ from .widgets.load_chart import ASCII_FOLD, nice_step, restyle
 STEP_MM = 5.0
 FAR_STEPS = 10
 VIEW_WHEELBASES = 2.6  # horizontal span of the side view
-KEYS_LINE = "Left/Right step  PgUp/PgDn x10  Home/End  n/p next/previous event  Esc or q close"
+KEYS_LINE = "Left/Right step  PgUp/PgDn x10  Home/End  n/p event  o course  Esc/q close"
 
 
 def _deg(ascii_only: bool) -> str:
@@ -191,27 +194,40 @@ EVENT_WORDS = {
     "front_lifts": "the front lifts", "front_down": "the front comes down", "rear_lifts": "the rear lifts",
     "rear_down": "the rear comes down", "handover": "handover", "hand_back": "hands back",
     "cannot_hold": "cannot hold", "holds_again": "holds again", "belly_touches": "the belly touches",
-    "belly_clear": "the belly clears",
+    "belly_clear": "the belly clears", "outside_model": "outside the model", "inside_model": "back in the model",
+    "windup_reverses": "the wind-up reverses", "both_grip": "both grip", "binds": "the driveline binds",
+    "unbinds": "the driveline frees",
 }
 
 
+def _pct(x) -> str:
+    return "-" if x is None or not math.isfinite(x) else f"{100.0 * x:.0f}%"
+
+
 def status_text(walk: CourseWalk, i: int, ascii_only: bool = False) -> str:
-    """Four short lines: where, loads, what the rig does here, and the next event."""
+    """Five short lines: where, loads, grip and path ratio, what the rig does here, the next event."""
     p, t = walk.pose, walk.traction
     d = _deg(ascii_only)
     lifted = walk.lifted[i]
-    doing = f"the {lifted} is off the ground: the rig tips over" if lifted else state_words(
-        int(t.state[i]), walk.overdriven)
+    fast = walk.overdriven_here[i]
+    doing = f"the {lifted} is off the ground: the rig tips over" if lifted else state_words(int(t.state[i]), fast)
     if walk.belly_touch[i]:
         doing += "; the belly touches"
     ahead = next((e for e in walk.events if e.index > i), None)
     nxt = f"Next (n): {EVENT_WORDS[ahead.kind]} at {ahead.rear_x_mm:.0f} mm" if ahead else "No more events ahead"
+    faster = f"{fast} faster" if fast else "no mismatch"
+    slip = lambda x: "slides" if not math.isfinite(x) else f"{x:+.1f}%"  # noqa: E731
+    grip = (f"Grip used F {_pct(t.front_grip_used[i])} R {_pct(t.rear_grip_used[i])}, slip F "
+            f"{slip(t.front_slip_pct[i])} R {slip(t.rear_slip_pct[i])}; path ratio {_num(p.path_ratio[i], 2)} "
+            f"({faster})") if np.isfinite(t.front_grip_used[i]) else (
+            f"Path ratio {_num(p.path_ratio[i], 2)} ({faster}); no tyre forces here")
     return "\n".join((
-        f"Rear axle at {_num(walk.rear_x_mm[i], 0, ' mm')} (front {_num(p.front_centre_mm[i, 0], 0, ' mm')}), "
+        f"Rear axle at {_num(walk.rear_x_mm[i], 0, ' mm')} (front {_num(p.front_centre_mm[i, 0], 0)}), "
         f"pitch {_num(p.pitch_deg[i], 1, d)}, ground F {_num(p.front_angle_deg[i], 1, d)} "
         f"R {_num(p.rear_angle_deg[i], 1, d)}",
-        f"Normal F {_num(walk.front_normal_g[i])} R {_num(walk.rear_normal_g[i])} g; along the ground "
+        f"Normal F {_num(walk.front_normal_g[i])} R {_num(walk.rear_normal_g[i])} g; tyre force "
         f"F {_num(t.front_force_g[i])} R {_num(t.rear_force_g[i])} g; belly {_num(p.belly_clearance_mm[i], 0, ' mm')}",
+        grip,
         f"{doing[0].upper()}{doing[1:]}.",
         f"{nxt}  [{i + 1}/{len(walk)}]",
     ))
@@ -315,6 +331,7 @@ class CourseScreen(Screen[None]):
         Binding("end", "go_end(1)", "End", show=False, id="course.end"),
         Binding("n", "event(1)", "Next event", id="course.next_event"),
         Binding("p", "event(-1)", "Previous event", show=False, id="course.previous_event"),
+        Binding("o", "other_course", "Other course", id="course.other"),
         Binding("escape,q", "close", "Close", id="course.close"),
     ]
 
@@ -325,13 +342,33 @@ class CourseScreen(Screen[None]):
             super().__init__()
             self.walk, self.problem = walk, problem
 
-    def __init__(self, setup: Setup, *, ascii_only: Optional[bool] = None, step_mm: float = STEP_MM) -> None:
+    def __init__(self, setup: Setup, *, setup_path=None, course=None, ascii_only: Optional[bool] = None,
+                 step_mm: float = STEP_MM) -> None:
         super().__init__()
         self.setup = setup
+        self.setup_path = setup_path
+        self.course = course if course is not None else setup.course
         self._ascii_only = ascii_only
         self.step_mm = step_mm
         self.walk: Optional[CourseWalk] = None
         self.index = 0
+
+    def course_folders(self) -> list:
+        """Where course files are looked for: the setup's folder, ./setups and the current folder."""
+        from pathlib import Path
+
+        folders = [Path(self.setup_path).parent] if self.setup_path else []
+        folders += [Path.cwd() / "setups", Path.cwd()]
+        out, seen = [], set()
+        for f in folders:
+            try:
+                key = f.resolve()
+            except OSError:
+                continue
+            if key not in seen and f.is_dir():
+                seen.add(key)
+                out.append(f)
+        return out
 
     @property
     def ascii_only(self) -> bool:
@@ -339,10 +376,11 @@ class CourseScreen(Screen[None]):
             return bool(getattr(self.app, "ascii_only", False))
         return self._ascii_only
 
+    def _title(self) -> str:
+        return one_line(f"{self.setup.name} - course: {self.course.name if self.course else '(none)'}")
+
     def compose(self) -> ComposeResult:
-        course = self.setup.course
-        title = one_line(f"{self.setup.name} - course: {course.name if course else '(none)'}")
-        yield Static(title, id="course-title", markup=False)
+        yield Static(self._title(), id="course-title", markup=False)
         yield SideView(id="course-view")
         yield CourseStatus(id="course-status")
         yield CourseChart(id="course-chart")
@@ -350,19 +388,39 @@ class CourseScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self.set_class(self.ascii_only, "-ascii")
-        if self.setup.course is None:
+        if self.course is None:
             self.query_one(CourseStatus).update(
-                "This setup has no [course]: add one to the file (name, points_mm, belly_clearance_mm) "
-                "to walk the rig along it. Esc or q closes.")
+                "This setup has no course of its own: choose a course file (schema = 1 and [course] "
+                "only) to walk the rig over. Esc or q closes.")
+            self.action_other_course(close_if_none=True)
             return
+        self._start_walk()
+
+    def _start_walk(self) -> None:
+        self.walk = None
+        self.query_one("#course-title", Static).update(self._title())
         self.query_one(CourseStatus).update("Walking the course...")
         self._walk()
+
+    def action_other_course(self, close_if_none: bool = False) -> None:
+        """Offer the setup's own course and the course files nearby; walk the one picked."""
+        from .screens.course_pick import CoursePickScreen
+
+        def picked(entry) -> None:
+            if entry is None:
+                if close_if_none:
+                    self.dismiss(None)
+                return
+            self.course = entry.course
+            self._start_walk()
+
+        self.app.push_screen(CoursePickScreen(self.course_folders(), own=self.setup.course), picked)
 
     @work(thread=True, exclusive=True)
     def _walk(self) -> None:
         """Walk the course off the event loop; report back with a message."""
         try:
-            walk = walk_course(self.setup, self.step_mm)
+            walk = walk_course(self.setup, self.step_mm, course=self.course)
         except SetupError as exc:
             self.post_message(self.WalkReady(None, exc.reason))
             return
