@@ -12,7 +12,8 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Optional
 
-from .setup_file import SECTIONS, SetupError, _Reader, find_line, one_line, parse_toml, read_setup_text
+from .safe_text import one_line
+from .setup_file import BOM, SECTIONS, SetupError, _Reader, parse_toml, read_setup_text
 from .setup_model import SCHEMA_VERSION, Course
 
 COURSE_KEYS = ("schema", "course")
@@ -30,21 +31,23 @@ class LoadedCourse:
 
 def parse_course(text: str, path: str = "<course>") -> tuple[Course, list]:
     """Check the TOML text of a course file; return (course, warnings) or raise `SetupError`."""
+    if text.startswith(BOM):
+        text = text[1:]
     if not text.strip():
         raise SetupError("file is empty; a course file needs schema = 1 and a [course] table", path)
-    data = parse_toml(text, path)
-    reader = _Reader(path, text, data)
+    data, index = parse_toml(text, path)
+    reader = _Reader(path, text, data, index)
     rig_parts = [k for k in data if k in SECTIONS and k != "course"]
     if rig_parts:
         raise SetupError(f"[{rig_parts[0]}] found: this is a setup file, not a course file (schema and [course] "
                          "only); walk its own course with slopetune walk FILE", path,
-                         find_line(text, rig_parts[0]), rig_parts[0])
+                         index.find(rig_parts[0]), rig_parts[0])
     for k, v in data.items():
         if k in COURSE_KEYS:
             continue
         if isinstance(v, dict):
             reader.fail(k, f"[{k}]: unknown section; a course file holds schema and [course] only")
-        reader.warnings.append(f"{path}:{find_line(text, k) or '?'}: unknown key {k} kept but not used")
+        reader.unknown(k, k)
     if "schema" not in data:
         raise SetupError(f"schema: missing; required, schema = {SCHEMA_VERSION}", path, 1, "schema")
     schema = data["schema"]
@@ -56,7 +59,7 @@ def parse_course(text: str, path: str = "<course>") -> tuple[Course, list]:
         raise SetupError("[course]: missing section; required (name, points_mm, belly_clearance_mm)", path, None,
                          "course")
     course = reader.course()
-    return course, [one_line(w) for w in reader.warnings]
+    return course, [one_line(w) for w in reader.finish_warnings()]
 
 
 def load_course(path) -> LoadedCourse:

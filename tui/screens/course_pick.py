@@ -15,6 +15,8 @@ from textual.screen import ModalScreen
 from textual.widgets import OptionList, Static
 from textual.widgets.option_list import Option
 
+from slopetune.engine.safe_text import one_line
+
 from .open_file import LINE_CHARS, Plain, _clip, _clip_left, _folder_words, _shown
 
 KEYS = "Up/Down: choose   Enter: walk it   Esc: back"
@@ -78,7 +80,7 @@ def scan_course_files(folders: list[Path]) -> tuple[list[CourseEntry], list[str]
 
 def entry_prompt(entry: CourseEntry) -> Content:
     """One line: the course's name and where it comes from, or the path and its problem greyed."""
-    words = entry.name if entry.problem is None else entry.problem
+    words = one_line(entry.name if entry.problem is None else entry.problem)
     where = _clip_left(entry.shown, max(LINE_CHARS - 2 - len(words or ""), 32))
     words = _clip(words or "", max(LINE_CHARS - 2 - len(where), 12))
     if entry.problem is None:
