@@ -37,6 +37,8 @@ MAX_STAGES = 10  # more would overflow the reduction (1000**103 > 1e308); real d
 # Unknown keys warned about one by one; past this one summary line (a file of thousands of unknown
 # keys would otherwise bury the screen).
 MAX_WARNINGS = 20
+# A real rig carries a handful of ballast items; thousands would only make every analysis slow.
+MAX_BALLAST_ITEMS = 100
 BOM = "\ufeff"
 SECTIONS = ("rig", "driveline", "grip", "terrain", "course")
 TOP_KEYS = ("schema", "name", "notes") + SECTIONS
@@ -198,6 +200,8 @@ class _Reader:
         ballast = r.get("ballast", [])
         if not isinstance(ballast, list):
             self.fail("rig.ballast", f"rig.ballast = {_show(ballast)}: must be [[rig.ballast]] items")
+        if len(ballast) > MAX_BALLAST_ITEMS:
+            self.fail("rig.ballast", f"rig.ballast: {len(ballast)} items; at most {MAX_BALLAST_ITEMS}")
         items = []
         for i, item in enumerate(ballast):
             base = f"rig.ballast.{i}"
@@ -330,6 +334,8 @@ def parse_setup(text: str, path: str = "<setup>") -> tuple[Setup, dict, list]:
     """
     if text.startswith(BOM):
         text = text[1:]
+    if len(text) > MAX_FILE_BYTES:
+        raise SetupError("text is over 1 MiB; a setup file must be under 1 MiB", path)
     if not text.strip():
         raise SetupError("file is empty; a setup needs at least schema, [rig], [grip] and [terrain]", path)
     data, index = parse_toml(text, path)

@@ -3,7 +3,8 @@
 The standard TOML parser recurses once per nested array or inline table (a few hundred brackets
 end in `RecursionError`) and its cost grows with the square of a dotted key's length (a key of
 tens of thousands of parts costs gigabytes). `scan` walks the text once, refuses nesting deeper
-than `MAX_NESTING` and keys longer than `MAX_KEY_PARTS` before the parser sees them, and on the
+than `MAX_NESTING`, keys longer than `MAX_KEY_PARTS`, more than `MAX_HEADERS` tables, `MAX_ITEMS` array
+elements or `MAX_KEYS` keys before the parser sees them, and on the
 way records where each table header and top-level key sits, so error and warning messages find
 their line by a dictionary look-up instead of a rescan per message.
 
@@ -23,6 +24,14 @@ from typing import Optional
 MAX_NESTING = 32
 # The longest key a setup uses has 3 parts (rig.ballast.name); 32 allows any sane layout.
 MAX_KEY_PARTS = 32
+# A setup has about six table headers plus one per ballast item (at most 100); thousands only
+# make the parser slow.
+MAX_HEADERS = 1000
+# Array elements and inline tables in all: a 10,000-point course holds 30,000; the parser takes
+# about 5 us each, so this bounds a file's parse to about half a second.
+MAX_ITEMS = 100_000
+# Keys in all (a setup uses about 40; your own extra keys are kept, but not tens of thousands).
+MAX_KEYS = 10_000
 
 _BARE = re.compile(r"[A-Za-z0-9_-]+")
 _SPACE = re.compile(r"[ \t\r]*")
@@ -73,6 +82,7 @@ class _Scanner:
         self.index = LineIndex()
         self.table: tuple = ()
         self.aot_count: dict[tuple, int] = {}
+        self.headers = self.keys = 0
 
     def line(self, pos: int) -> int:
         return bisect.bisect_left(self.newlines, pos) + 1
@@ -131,6 +141,9 @@ class _Scanner:
         if parts is None or not t.startswith(close, pos):
             return self.eol(pos)
         line = self.line(pos)
+        self.headers += 1
+        if self.headers > MAX_HEADERS:
+            raise ScanProblem(f"more than {MAX_HEADERS} [table] headers; a setup has a few", line)
         self.table = parts
         if array:
             i = self.aot_count.get(parts, -1) + 1
@@ -141,7 +154,7 @@ class _Scanner:
         return pos + len(close)
 
     def run(self) -> LineIndex:
-        t, pos, stack = self.text, 0, []
+        t, pos, stack, items = self.text, 0, [], 0
         expect_key = True  # at a top-level line start, or after "{" / "," in an inline table
         while pos < self.n:
             pos = self.skip_space(pos)
@@ -170,6 +183,9 @@ class _Scanner:
                 if parts is None or pos >= self.n or t[pos] != "=":
                     pos = self.eol(pos)  # not TOML the scanner knows: the parser will say
                     continue
+                self.keys += 1
+                if self.keys > MAX_KEYS:
+                    raise ScanProblem(f"more than {MAX_KEYS} keys; a setup has about 40", self.line(at))
                 if not stack:
                     self.index.add(self.table + parts, self.line(at))
                 pos += 1
@@ -179,6 +195,7 @@ class _Scanner:
                 pos = self.string(pos)
             elif c in "[{":
                 stack.append(c)
+                items += 1
                 if len(stack) > MAX_NESTING:
                     raise ScanProblem(f"arrays or tables nested more than {MAX_NESTING} deep; "
                                       "a setup nests at most 2", self.line(pos))
@@ -190,6 +207,10 @@ class _Scanner:
                 pos += 1
             elif c == ",":
                 expect_key = bool(stack) and stack[-1] == "{"
+                items += 1
+                if items > MAX_ITEMS:
+                    raise ScanProblem(f"more than {MAX_ITEMS} array elements; a setup or course has far fewer",
+                                      self.line(pos))
                 pos += 1
             else:
                 m = _PLAIN.match(t, pos)
@@ -216,4 +237,4 @@ def line_index(text: str) -> LineIndex:
         return LineIndex()
 
 
-__all__ = ["MAX_NESTING", "MAX_KEY_PARTS", "ScanProblem", "LineIndex", "scan", "line_index"]
+__all__ = ["MAX_NESTING", "MAX_KEY_PARTS", "MAX_HEADERS", "MAX_ITEMS", "MAX_KEYS", "ScanProblem", "LineIndex", "scan", "line_index"]

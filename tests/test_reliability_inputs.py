@@ -138,6 +138,20 @@ def test_brackets_inside_strings_do_not_count_as_nesting():
     assert setup.rig.mass_g == 2380
 
 
+@pytest.mark.parametrize("what, text, words", [
+    ("tables", STOCK + "".join(f"\n[t{i}]\nk = 1\n" for i in range(1001)), r"1000 \[table\] headers"),
+    ("array", STOCK + "x = [" + ",".join(["1"] * 100_001) + "]\n", "100000 array elements"),
+    ("keys", STOCK + "\n".join(f"k{i} = 1" for i in range(10_001)), "10000 keys"),
+    ("ballast", STOCK + '\n[[rig.ballast]]\nname = "x"\nmass_g = 1\nx_mm = 150\nz_mm = 40\n' * 101, "at most 100"),
+])
+def test_a_small_file_costs_a_small_bound(what, text, words):
+    # each shape is far beyond any real setup (about 40 keys, 6 tables, a few ballast items)
+    t0 = time.perf_counter()
+    with pytest.raises(SetupError, match=words):
+        parse_setup(text, "big.toml")
+    assert time.perf_counter() - t0 < 1.0
+
+
 # ---------------------------------------------------------------- 4: linear line finding
 
 def test_a_long_header_like_line_in_a_multiline_string_is_found_fast():

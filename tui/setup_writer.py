@@ -184,17 +184,19 @@ def render_setup(loaded: Optional[LoadedSetup], setup: Setup) -> str:
 
     dl = _section(doc, "driveline")
     d = setup.driveline
+    # new keys first, old ones removed after: tomlkit loses track of a dotted-key table whose
+    # every key is deleted before one is added
     if d.uses_stages:
-        _put(dl, "overdrive_pct", None)
         for key in ("front_stages", "rear_stages"):
             new = [list(s) for s in getattr(d, key)]
             old = dl.get(key)
             if old is None or old.unwrap() != new:
                 dl[key] = _stages(getattr(d, key))
+        _put(dl, "overdrive_pct", None)
     else:
+        _put(dl, "overdrive_pct", d.overdrive_pct or 0)
         _put(dl, "front_stages", None)
         _put(dl, "rear_stages", None)
-        _put(dl, "overdrive_pct", d.overdrive_pct or 0)
 
     grip = _section(doc, "grip")
     g = setup.grip
@@ -265,9 +267,12 @@ def _refuse_replacing(path: Path, st: os.stat_result) -> None:
     except (OSError, AttributeError):
         read_only_mount = False
     # on a read-only mount the write itself fails and says so (EROFS); here: the file's own protection
-    if not read_only_mount and (not st.st_mode & 0o222 or not os.access(path, os.W_OK)):
+    if not read_only_mount and not st.st_mode & 0o222:
         raise SaveError(f"{path}: the file is read-only; not saved (nothing lost). To keep the change, "
                         f"{ELSEWHERE}, or make it writable (chmod u+w)")
+    if not read_only_mount and not os.access(path, os.W_OK):
+        raise SaveError(f"{path}: you may not write this file (owner uid {st.st_uid}); not saved (nothing lost). "
+                        f"To keep the change, {ELSEWHERE}")
     euid = os.geteuid() if hasattr(os, "geteuid") else st.st_uid
     if euid not in (0, st.st_uid):
         raise SaveError(f"{path}: belongs to another user (uid {st.st_uid}); saving would make it yours, so "
