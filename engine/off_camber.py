@@ -309,11 +309,17 @@ class AlongHeading:
     side_demand: np.ndarray  # t = tan β |sin ψ|
     slides: np.ndarray  # t >= min μ_s: the rig slides sideways
     rolls: np.ndarray  # the gravity line has crossed a side edge: rolled over
+    kinetic: tuple = (np.inf, np.inf)  # the planar μ_k of each axle (the crab rule's limit)
 
-    def state_codes(self, state, both_code: int, lifted_code: int) -> np.ndarray:
-        """Traction codes with a sideways slide as `both` and a roll-over as `lifted`."""
-        out = np.where(self.slides, both_code, state)
-        return np.where(self.rolls, lifted_code, out).astype(np.int8)
+    def state_codes(self, state, codes) -> np.ndarray:
+        """Traction codes (`codes`: the FRONT, REAR, BOTH, LIFTED of `traction`) with a sideways
+        slide as BOTH, a scrubbing axle that cannot carry its sideways share (``t >= μ_k``: it
+        crabs off downhill) as BOTH, and a roll-over as LIFTED."""
+        front, rear, both, lifted = codes
+        crab = ((state == front) & (self.side_demand >= self.kinetic[0])) | (
+            (state == rear) & (self.side_demand >= self.kinetic[1]))
+        out = np.where(self.slides | crab, both, state)
+        return np.where(self.rolls, lifted, out).astype(np.int8)
 
 
 def along_heading(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, track_mm, slope_deg, heading_deg,
@@ -343,4 +349,5 @@ def along_heading(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, track_m
         s, k = (np.maximum(friction_circle_mu(m, t), 1e-6) for m in mu)
         return s, np.minimum(k, s)
 
-    return AlongHeading(nf, nr, f_req, circle(mu_front), circle(mu_rear), t, slides, rolls)
+    return AlongHeading(nf, nr, f_req, circle(mu_front), circle(mu_rear), t, slides, rolls,
+                        (mu_front[1], mu_rear[1]))
