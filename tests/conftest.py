@@ -10,7 +10,7 @@ import os
 import sys
 from pathlib import Path
 
-from hypothesis import HealthCheck, settings
+from hypothesis import HealthCheck, Phase, settings
 from hypothesis import strategies as st
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -31,12 +31,22 @@ settings.register_profile(
     "ci", max_examples=100, deadline=None, derandomize=True, database=None,
     suppress_health_check=[HealthCheck.too_slow],
 )
+# bench/mutation.py: the same derandomised examples as CI, fewer of them, so ~50 mutants run in minutes.
+# No shrinking: a mutant needs one failing example, not the smallest one.
+settings.register_profile(
+    "mutation", max_examples=25, deadline=None, derandomize=True, database=None,
+    phases=(Phase.explicit, Phase.generate), report_multiple_bugs=False,
+    suppress_health_check=[HealthCheck.too_slow],
+)
 PROFILE = os.environ.get("HYPOTHESIS_PROFILE", "ci" if os.environ.get("CI") else "slopetune")
 settings.load_profile(PROFILE)
 
 
 def examples(n: int) -> int:
-    """Example count for a test that sets its own: n normally, 20 n with the thorough profile."""
+    """Example count for a test that sets its own: n normally, 20 n with the thorough profile,
+    a quarter with the mutation profile."""
+    if PROFILE == "mutation":
+        return max(5, n // 4)
     return n * 20 if PROFILE == "thorough" else n
 
 

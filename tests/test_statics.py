@@ -226,6 +226,17 @@ def test_lift_angles_bound_the_sweep(setup):
             assert lifted == "rear", t
 
 
+def test_closed_form_roots_worked_by_hand():
+    """Worked by hand: sin θ = 1/2 at 30° and 150°, and only 30° is a slope; cos θ = 0 only at
+    ±90°, outside the open interval; cos θ = sin θ at 45° and −135°, so 45° alone; and
+    √3 cos θ + sin θ = √3 where 2 cos(θ − 30°) = √3, at 0° and 60°, both slopes."""
+    assert ss.solve_cos_sin(0.0, 1.0, -0.5) == pytest.approx([30.0], abs=1e-9)
+    assert ss.solve_cos_sin(1.0, 0.0, 0.0) == []
+    assert ss.solve_cos_sin(1.0, -1.0, 0.0) == pytest.approx([45.0], abs=1e-9)
+    assert ss.solve_cos_sin(math.sqrt(3.0), 1.0, -math.sqrt(3.0)) == pytest.approx([0.0, 60.0], abs=1e-9)
+    assert ss.solve_cos_sin(0.0, 0.0, 1.0) == [] and ss.solve_cos_sin(1.0, 0.0, 2.0) == []
+
+
 def test_balance_angle_negative_for_rear_biased_rig():
     # tan θ = (b − L/2)/h < 0 when b < L/2 (Gillespie ch. 2): 40 % bias, L 300, h 100 -> atan(−0.3).
     a = engine.analyse(plain_setup(front_bias_pct=40.0, cg_height_mm=100.0))

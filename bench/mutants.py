@@ -1,0 +1,150 @@
+"""The fixed list of single-point mutants that `bench/mutation.py` runs against the physics tests.
+
+Each mutant is one exact source-text replacement in one `engine/` file: the anchor must occur
+exactly once in that file, otherwise the mutant is reported as stale (the code moved on; rewrite
+the mutant), never as killed. Kinds: sign flip, sin/cos swap, dropped term, wrong branch,
+static/kinetic swap, per-axle swap, wrong constant.
+
+`EQUIVALENT` holds the reason a surviving mutant cannot change any result (one line each); a
+survivor without a reason there is a hole in the tests.
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+
+class Mutant(NamedTuple):
+    ident: str
+    path: str  # under engine/
+    old: str  # exact anchor text
+    new: str
+    kind: str
+
+
+M = Mutant
+
+MUTANTS = (
+    # --- slope_statics: grade loads and named angles (Gillespie ch. 2) ---------------------------
+    M("S01", "slope_statics.py", "(cg_from_rear_mm * cos_t - cg_height_mm * (sin_t + accel_g))",
+      "(cg_from_rear_mm * sin_t - cg_height_mm * (cos_t + accel_g))", "sin/cos swap in N_f"),
+    M("S02", "slope_statics.py", "cg_height_mm * (sin_t + accel_g)", "cg_height_mm * (sin_t - accel_g)",
+      "sign flip: throttle loads the front"),
+    M("S03", "slope_statics.py", "cg_height_mm * (sin_t + accel_g)", "cg_height_mm * sin_t",
+      "dropped term: throttle"),
+    M("S04", "slope_statics.py", "return front, weight_g * cos_t - front", "return front, weight_g - front",
+      "dropped cos in N_r"),
+    M("S05", "slope_statics.py", "return front, weight_g * cos_t - front",
+      "return front, weight_g * cos_t + front", "sign flip in N_r"),
+    M("S06", "slope_statics.py", "psi = np.arctan2(q, p)", "psi = np.arctan2(p, q)",
+      "sin/cos swap in the closed-form root"),
+    M("S07", "slope_statics.py", "np.clip(-c / r, -1.0, 1.0)", "np.clip(c / r, -1.0, 1.0)",
+      "sign flip in the closed-form root"),
+    M("S08", "slope_statics.py", "np.arctan2(b - half, h)", "np.arctan2(half - b, h)",
+      "sign flip: balance angle"),
+    M("S09", "slope_statics.py", "-2 * h, -2 * h * accel_g, guess", "-2 * h, 2 * h * accel_g, guess",
+      "sign flip: balance angle under throttle"),
+    M("S10", "slope_statics.py", "guess = float(np.degrees(np.arctan2(b, h)))",
+      "guess = float(np.degrees(np.arctan2(h, b)))", "sin/cos swap: front lift angle"),
+    M("S11", "slope_statics.py", "a, h = wheelbase_mm - cg_from_rear_mm, cg_height_mm",
+      "a, h = cg_from_rear_mm, cg_height_mm", "per-axle swap: rear lift uses b for a"),
+    M("S12", "slope_statics.py", "return _root_near(a, h, h * accel_g, guess)",
+      "return _root_near(a, h, -h * accel_g, guess)", "sign flip: rear lift under throttle"),
+    M("S13", "slope_statics.py", "return min(roots, key=lambda r: abs(r - guess_deg))",
+      "return max(roots, key=lambda r: abs(r - guess_deg))", "wrong branch: farthest root"),
+    M("S14", "slope_statics.py", "np.arctan2(track_mm / 2.0, cg_height_mm)",
+      "np.arctan2(track_mm, cg_height_mm)", "dropped term: half track in sidehill roll"),
+    M("S15", "slope_statics.py", "np.arctan(min(mu_static_front, rear))", "np.arctan(max(mu_static_front, rear))",
+      "wrong branch: sidehill slide on the grippier axle"),
+    M("S16", "slope_statics.py", "return track_mm / (2.0 * cg_height_mm)", "return track_mm / cg_height_mm",
+      "dropped term: SSF factor 2"),
+    M("S17", "slope_statics.py", "if -90.0 < deg < 90.0 and", "if -90.0 < deg < 180.0 and",
+      "wrong branch: root outside the slope range kept"),
+
+    # --- overdrive: gear trains and tyre sizes (Shigley ch. 13; Gillespie ch. 6) ----------------
+    M("O01", "overdrive.py", "r *= driven / driver", "r *= driver / driven", "inverted stage ratio"),
+    M("O02", "overdrive.py", "stage_reduction(rear_stages) / stage_reduction(front_stages)",
+      "stage_reduction(front_stages) / stage_reduction(rear_stages)", "per-axle swap: gear trains"),
+    M("O03", "overdrive.py", "* tire_dia_front_mm / tire_dia_rear_mm", "* tire_dia_rear_mm / tire_dia_front_mm",
+      "per-axle swap: tyre diameters"),
+    M("O04", "overdrive.py", "pct_of_front=e / k * 100.0", "pct_of_front=e * 100.0", "dropped term: / k"),
+    M("O05", "overdrive.py", "abs(e) / ((k + 1.0) / 2.0) * 100.0", "abs(e) / (k + 1.0) * 100.0",
+      "dropped term: mean of the two speeds"),
+    M("O06", "overdrive.py", "math.degrees(math.acos(1.0 / k))", "math.degrees(math.asin(1.0 / k))",
+      "sin/cos swap: turn-match steer"),
+    M("O07", "overdrive.py", "elif e > 0:", "elif e < 0:", "wrong branch: which axle is fast"),
+
+    # --- ballast (Jazar ch. 2) ----------------------------------------------------------------
+    M("B01", "ballast.py", "mi * float(xi) for mi, xi in zip(m, x_mm)", "mi * float(xi) for mi, xi in zip(m, z_mm)",
+      "x/z swap in the mass centre"),
+    M("B02", "ballast.py", "base_x = rig.front_bias_pct / 100.0 * rig.wheelbase_mm",
+      "base_x = (100.0 - rig.front_bias_pct) / 100.0 * rig.wheelbase_mm", "per-axle swap: rear share as b"),
+    M("B03", "ballast.py", "total = math.fsum(m)", "total = math.fsum(abs(v) for v in m)",
+      "sign flip: a removed part adds mass"),
+
+    # --- measure (ISO 10392; Serway & Beichner ch. 5) -----------------------------------------
+    M("M01", "measure.py", "return 100.0 * np.asarray(front_reading_g, dtype=float)",
+      "return 100.0 - 100.0 * np.asarray(front_reading_g, dtype=float)", "per-axle swap: rear share"),
+    M("M02", "measure.py", "x = weight_g * np.tan(np.arcsin(lift / wheelbase_mm))",
+      "x = weight_g * np.sin(np.arcsin(lift / wheelbase_mm))", "sin for tan: lift angle"),
+    M("M03", "measure.py", "return float(axle_height_mm + np.dot(x, delta) / np.dot(x, x))",
+      "return float(np.dot(x, delta) / np.dot(x, x))", "dropped term: axle height"),
+    M("M04", "measure.py", "return np.tan(np.radians(", "return np.sin(np.radians(", "sin for tan: mu"),
+    M("M05", "measure.py", "np.dot(x, delta) / np.dot(x, x)", "np.sum(delta) / np.sum(x)",
+      "wrong fit: ratio of sums for least squares"),
+
+    # --- analysis: the model built from a setup, named angles -----------------------------------
+    M("A01", "analysis.py", "st.sidehill_slide_angle_deg(model.mu_f[0], model.mu_r[0])",
+      "st.sidehill_slide_angle_deg(model.mu_f[1], model.mu_r[1])", "static/kinetic swap: sidehill slide"),
+    M("A02", "analysis.py", "self.mu_f, self.mu_r = (fs, fk), (rs, rk)",
+      "self.mu_f, self.mu_r = (rs, rk), (fs, fk)", "per-axle swap: mu"),
+    M("A03", "analysis.py", "self.mu_f, self.mu_r = (fs, fk), (rs, rk)",
+      "self.mu_f, self.mu_r = (fk, fs), (rk, rs)", "static/kinetic swap: mu"),
+    M("A04", "analysis.py", "return 100.0 * self.cg_from_rear_mm / self.wheelbase_mm",
+      "return 100.0 - 100.0 * self.cg_from_rear_mm / self.wheelbase_mm", "per-axle swap: effective bias"),
+    M("A05", "analysis.py", "overdrive_figures(gear, setup.rig.tire_dia_front_mm, setup.rig.tire_dia_rear_mm)",
+      "overdrive_figures(gear, setup.rig.tire_dia_rear_mm, setup.rig.tire_dia_front_mm)",
+      "per-axle swap: tyres into the overdrive"),
+    M("A06", "analysis.py", "return msr * nr - msf * nf - f", "return msr * nr - msf * nf + f",
+      "sign flip: rear-overdrive margin"),
+    M("A07", "analysis.py", 'w = (-msf, msr, -1.0) if model.overdriven == "rear" else (msf, -msr, -1.0)',
+      'w = (msf, -msr, -1.0) if model.overdriven == "rear" else (-msf, msr, -1.0)',
+      "per-axle swap: handover breakpoints"),
+    M("A08", "analysis.py", "return (model.fast_first_margin(t) >= 0) | (nf <= 0) | (nr <= 0)",
+      "return (model.fast_first_margin(t) >= 0)", "dropped term: handover past a lift"),
+    M("A09", "analysis.py", 'return angle, ("lift" if code == LIFTED else "slip")',
+      'return angle, ("slip" if code == LIFTED else "lift")', "wrong branch: what ends the climb"),
+    M("A10", "analysis.py", "(msf, msr, -s),  # no overdrive: both together", "",
+      "dropped term: breakpoint where both together run out"),
+    M("A11", "analysis.py", "c = (rows[:, 0] + rows[:, 2]) / 2.0", "c = (rows[:, 0] + rows[:, 2])",
+      "dropped term: constant of p cos + q sin + c"),
+    M("A12", "analysis.py", "return float(pts[i]), float(mids[i])", "return float(pts[i + 1]), float(mids[i])",
+      "wrong branch: far end of the failing interval"),
+    M("A13", "analysis.py", "required_force_g(self.rig.mass_g, slope_deg, self.crr, self.accel)",
+      "required_force_g(self.rig.mass_g, slope_deg, 0.0, self.accel)", "dropped term: rolling resistance"),
+
+    # --- traction (Coulomb rule under wind-up, MODEL §5 limit) ----------------------------------
+    M("T01", "traction.py", "np.sin(th) + rolling_resistance * np.cos(th) + accel_g",
+      "np.sin(th) + rolling_resistance + accel_g", "dropped cos: rolling resistance"),
+    M("T02", "traction.py", "return mu_fast_static * n_fast_g - mu_slow_static * n_slow_g < required_g",
+      "return mu_fast_static * n_fast_g + mu_slow_static * n_slow_g < required_g", "sign flip: fast-first rule"),
+    M("T03", "traction.py", "slow_if_fast = f_req - mk_fa * n_fa", "slow_if_fast = f_req - ms_fa * n_fa",
+      "static/kinetic swap: spinning fast axle"),
+    M("T04", "traction.py", "fast_if_slow = f_req + mk_sl * n_sl", "fast_if_slow = f_req - mk_sl * n_sl",
+      "sign flip: dragged slow axle"),
+    M("T05", "traction.py", "= nr, nf, msr, mkr, msf, mkf, REAR, FRONT", "= nr, nf, msr, mkf, msf, mkr, REAR, FRONT",
+      "per-axle swap: kinetic mu with the rear overdriven"),
+    M("T06", "traction.py", "np.where(holds, fast_if_slow, np.sign(fast_if_slow) * mk_fa * n_fa)",
+      "np.where(holds, fast_if_slow, np.sign(fast_if_slow) * ms_fa * n_fa)", "static/kinetic swap: both slip"),
+    M("T07", "traction.py", "np.where(holds, slow_if_fast, np.sign(slow_if_fast) * mk_sl * n_sl)",
+      "np.where(holds, slow_if_fast, -np.sign(slow_if_fast) * mk_sl * n_sl)", "sign flip: both slip"),
+    M("T08", "traction.py", "holds = np.abs(f_req) <= cap", "holds = f_req <= cap",
+      "dropped term: braking needs grip too"),
+    M("T09", "traction.py", '(f_fast - ref_f) if overdriven == "front" else (f_fast - (f_req - ref_f))',
+      "(f_fast - ref_f)", "per-axle swap: wind-up reference"),
+    M("T10", "traction.py", "lifted = (nf <= 0) | (nr <= 0)", "lifted = nf <= 0", "dropped term: rear lift"),
+)
+
+EQUIVALENT = {
+    # ident: one line on why no result can change
+}
