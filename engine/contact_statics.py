@@ -55,9 +55,9 @@ from .tyre_brush import brush_psi, brush_psi_inverse
 # An axle given as rigid beside one with a finite stiffness is solved with the uniform-slope solve's
 # stand-in stiffness, so both give the same numbers.
 NEAR_RIGID = RIGID_STAND_IN
-_GRID = 33  # residual samples across the bracket, plus the poles
+_GRID = 21  # residual samples across the bracket, plus the poles
 _POLE_GAP = 1e-9  # grid points this far (relative) either side of a pole
-_BISECT = 48  # halvings of the bracket cell; a secant step on the last cell finishes it
+_BISECT = 34  # halvings of the bracket cell (to about 1e-11); a secant step on the last cell finishes it
 
 
 @dataclass(frozen=True)

@@ -363,8 +363,16 @@ def _belly_clearance(path: WheelPath, rear_centre, front_centre, phi, rear_radiu
     return clearance_mm - top, point
 
 
+def rig_paths(points_mm, wheelbase_mm, front_radius_mm, rear_radius_mm) -> tuple[WheelPath, WheelPath]:
+    """The front and rear wheels' centre curves, prepared once for a walk in chunks."""
+    pts = np.asarray(points_mm, dtype=float)
+    rf, rr = float(front_radius_mm), float(rear_radius_mm)
+    pad = float(np.hypot(wheelbase_mm, rf - rr)) + 4.0 * max(rf, rr)
+    return wheel_path(pts, rf, pad), wheel_path(pts, rr, pad)
+
+
 def place_rig(points_mm, rear_x_mm, wheelbase_mm, front_radius_mm, rear_radius_mm,
-              cg_from_rear_mm, cg_height_mm, belly_clearance_mm) -> RigPose:
+              cg_from_rear_mm, cg_height_mm, belly_clearance_mm, paths=None) -> RigPose:
     """Pose of the rig at each rear-wheel-centre position along a terrain profile.
 
     Parameters
@@ -381,6 +389,8 @@ def place_rig(points_mm, rear_x_mm, wheelbase_mm, front_radius_mm, rear_radius_m
         CG ahead of the rear contact and above the ground line, on level ground. [mm]
     belly_clearance_mm : float
         Belly height above the ground line on level ground. [mm]
+    paths : (WheelPath, WheelPath), optional
+        `rig_paths` of the same terrain and tyres, when the caller places the rig in chunks.
 
     Returns
     -------
@@ -392,14 +402,11 @@ def place_rig(points_mm, rear_x_mm, wheelbase_mm, front_radius_mm, rear_radius_m
     The axle centres are ``D = hypot(L, r_f − r_r)`` apart; the chassis pitch is the angle of
     the centre line minus ``atan2(r_f − r_r, L)`` [2]_.
     """
-    pts = np.asarray(points_mm, dtype=float)
     xr = np.asarray(rear_x_mm, dtype=float)
     rf, rr, L = float(front_radius_mm), float(rear_radius_mm), float(wheelbase_mm)
     reach = float(np.hypot(L, rf - rr))
     offset = float(np.arctan2(rf - rr, L))
-    pad = reach + 4.0 * max(rf, rr)
-    rear_path = wheel_path(pts, rr, pad)
-    front_path = wheel_path(pts, rf, pad)
+    front_path, rear_path = paths if paths is not None else rig_paths(points_mm, L, rf, rr)
 
     zr, rear_ang = centre_height(rear_path, xr)
     rear_c = np.stack((xr, zr), axis=-1)

@@ -39,14 +39,14 @@ import numpy as np
 from .analysis import effective_rig, setup_overdrive
 from .contact_rigid import BINDS
 from .contact_statics import ContactLoads, CourseTraction, solve_contacts
-from .course_geometry import RigPose, concat_poses, place_rig, vertices_within
+from .course_geometry import RigPose, concat_poses, place_rig, rig_paths, vertices_within
 from .setup_file import SetupError
 from .setup_model import Course, Setup
 from .traction import BOTH, FRONT, LIFTED, NONE, REAR, STATES
 
 DEFAULT_STEP_MM = 5.0
 MAX_POSITIONS = 200_000  # a typo in --step should not eat the memory
-CHUNK_ELEMENTS = 1 << 17  # positions × terrain points in view, per chunk
+CHUNK_ELEMENTS = 1 << 18  # positions × terrain points in view, per chunk (2 MiB per float array)
 OUTSIDE = len(STATES)  # course only: a tyre in a V, or the front jammed against a wall
 WALK_STATES = STATES + ("outside",)
 _K_PASSES = 3  # fixed-point passes for load-dependent rolling diameters
@@ -162,10 +162,10 @@ def course_positions(setup: Setup, step_mm: float = DEFAULT_STEP_MM, course: Opt
     return x0 + step_mm * np.arange(int(math.floor(count + 1e-9)) + 1)
 
 
-def chunk_size(course: Course, rig, clearance_mm: float) -> int:
+def chunk_size(points_mm, rig, clearance_mm: float) -> int:
     """Positions per chunk: the terrain points one position looks at, kept under `CHUNK_ELEMENTS`."""
     r = max(rig.tire_dia_front_mm, rig.tire_dia_rear_mm) / 2.0
-    pts = course.points_mm
+    pts = points_mm
     per_wheel = 6 * vertices_within(pts, 2.0 * r)  # the front placement scans six pitch angles
     in_reach = vertices_within(pts, rig.wheelbase_mm + 4.0 * r)
     belly = 3 * vertices_within(pts, rig.wheelbase_mm + 6.0 * r + 4.0 * abs(clearance_mm))
@@ -264,13 +264,14 @@ def walk_course(setup: Setup, step_mm: float = DEFAULT_STEP_MM, rear_x_mm=None,
     rig = effective_rig(setup)
     od = setup_overdrive(setup)
     gear = 1.0 + od.gear_pct / 100.0
-    size = chunk_size(course, rig, course.belly_clearance_mm)
+    points = np.asarray(course.points_mm, dtype=float)
+    size = chunk_size(points, rig, course.belly_clearance_mm)
+    rf, rr = rig.tire_dia_front_mm / 2.0, rig.tire_dia_rear_mm / 2.0
+    paths = rig_paths(points, rig.wheelbase_mm, rf, rr)
     poses, loads, ks, mism = [], [], [], []
     for start in range(0, max(xs.size, 1), size):
-        pose = place_rig(
-            course.points_mm, xs[start:start + size], rig.wheelbase_mm, rig.tire_dia_front_mm / 2.0,
-            rig.tire_dia_rear_mm / 2.0, rig.cg_from_rear_mm, rig.cg_height_mm, course.belly_clearance_mm,
-        )
+        pose = place_rig(points, xs[start:start + size], rig.wheelbase_mm, rf, rr, rig.cg_from_rear_mm,
+                         rig.cg_height_mm, course.belly_clearance_mm, paths)
         chunk_loads, k, mismatch, outside = _solve_chunk(setup, rig, gear, pose)
         poses.append(pose)
         loads.append(_mark(chunk_loads, pose, outside))

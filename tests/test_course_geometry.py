@@ -171,3 +171,93 @@ def test_belly_over_a_crest_hand_worked():
     assert_allclose(pose.belly_clearance_mm, c - r - half * t + r * sec, rtol=1e-12)
     assert_allclose(pose.belly_clearance_mm, -8.75, atol=0.005)
     assert_allclose(pose.belly_point_mm[0], [500.0, 500.0 * t], atol=1e-9)
+
+
+# ----- path ratio (MODEL §6) ----------------------------------------------------------------------
+
+def _ramp_foot_pose_by_hand(x_r, r, reach, alpha_deg, foot_x):
+    """Rear centre on the flat at (x_r, r); front centre on the line r above the face, which rises
+    at α from (foot_x, 0): solve |F − R| = reach on that line (a quadratic, worked by hand)."""
+    a = math.radians(alpha_deg)
+    # offset line: points (foot_x, 0) + s (cos a, sin a) + r (−sin a, cos a)
+    p0 = np.array([foot_x - r * math.sin(a), r * math.cos(a)])
+    u = np.array([math.cos(a), math.sin(a)])
+    d = p0 - np.array([x_r, r])
+    b, c = 2.0 * (d @ u), d @ d - reach * reach
+    s = (-b + math.sqrt(b * b - 4.0 * c)) / 2.0
+    front = p0 + s * u
+    return front, math.atan2(front[1] - r, front[0] - x_r)
+
+
+@pytest.mark.parametrize("alpha", [20.0, 35.0, 55.0])
+def test_ramp_foot_path_ratio_worked_by_hand(alpha):
+    """Rear on the flat, front on a face at α (equal tyres): ρ = cos φ / cos(α − φ), with the pitch
+    φ from the hand-solved pose (velocities of the two ends of a rigid link have equal components
+    along it: Meriam & Kraige, *Dynamics*, ch. 5). Worked example at α = 35°, rear x = 300 mm,
+    r = 56, L = 313, foot at 600 mm: φ = 3.842°, ρ = cos 3.842° / cos 31.158° = 1.1659."""
+    r, reach, foot = 56.0, 313.0, 600.0
+    top = 400.0 * math.tan(math.radians(alpha))
+    pts = [[0.0, 0.0], [foot, 0.0], [foot + 400.0, top], [foot + 1000.0, top]]
+    xs = np.array([300.0, 330.0, 360.0])
+    pose = place_rig(pts, xs, reach, r, r, 180.0, 88.0, 44.0)
+    for i, x in enumerate(xs):
+        front, phi = _ramp_foot_pose_by_hand(x, r, reach, alpha, foot)
+        assert pose.front_angle_deg[i] == pytest.approx(alpha) and pose.rear_angle_deg[i] == 0.0
+        assert_allclose(pose.front_centre_mm[i], front, atol=1e-7)
+        assert_allclose(math.radians(pose.pitch_deg[i]), phi, atol=1e-9)
+        expected = math.cos(phi) / math.cos(math.radians(alpha) - phi)
+        assert_allclose(pose.path_ratio[i], expected, rtol=1e-9)
+    if alpha == 35.0:
+        assert pose.pitch_deg[0] == pytest.approx(3.842, abs=1e-3)
+        assert pose.path_ratio[0] == pytest.approx(1.1659, abs=1e-4)
+
+
+@st.composite
+def rough_courses(draw):
+    """Polylines of 4 to 12 points, x increasing, slopes within ±50°, steps of 20 to 200 mm."""
+    n = draw(st.integers(4, 12))
+    xs, zs = [0.0], [0.0]
+    for _ in range(n - 1):
+        dx = draw(st.floats(20.0, 200.0))
+        slope = draw(st.floats(-50.0, 50.0))
+        xs.append(xs[-1] + dx)
+        zs.append(zs[-1] + dx * math.tan(math.radians(slope)))
+    return np.stack((xs, zs), -1)
+
+
+@given(pts=rough_courses(), r=st.floats(30.0, 70.0), share=st.floats(0.05, 0.6), rf=st.floats(30.0, 70.0))
+def test_path_ratio_matches_finite_differences(pts, r, share, rf):
+    """ρ and the pitch rate against central differences of the placement itself: the arc lengths
+    travelled by the two centres (chords of ±0.001 mm steps) and the change of pitch, on random
+    courses, away from kinks and contact changes (where the one-sided derivatives differ)."""
+    wheelbase = 250.0
+    span = pts[-1, 0] - pts[0, 0]
+    assume(span > wheelbase + 2 * max(r, rf) + 50.0)
+    x = pts[0, 0] + share * (span - wheelbase - 2 * max(r, rf))
+    h = 1e-3
+    xs = np.array([x - h, x, x + h])
+    pose = place_rig(pts, xs, wheelbase, rf, r, 120.0, 80.0, 40.0)
+    assume(pose.placed.all())
+    # the same contact element either side: same contact angle at all three (no switch inside)
+    assume(np.ptp(pose.front_angle_deg) < 0.05 and np.ptp(pose.rear_angle_deg) < 0.05)
+    assume(np.isfinite(pose.path_ratio[1]))
+    fc, rc = pose.front_centre_mm, pose.rear_centre_mm
+    ds_f = np.linalg.norm(fc[2] - fc[0]) * np.sign(fc[2, 0] - fc[0, 0])
+    ds_r = np.linalg.norm(rc[2] - rc[0])
+    assert_allclose(pose.path_ratio[1], ds_f / ds_r, rtol=1e-4, atol=1e-4)
+    rate = math.radians(pose.pitch_deg[2] - pose.pitch_deg[0]) / ds_r
+    assert_allclose(pose.pitch_rate_rad_per_mm[1], rate, atol=1e-6 + 1e-4 * abs(rate))
+
+
+def test_wheel_in_a_v_is_flagged_not_given_one_face():
+    """A symmetric notch with ±45° faces, narrower than the tyre: at x = 150 the rear tyre touches
+    both faces (its centre sits on the bisector at the kink of its centre curve); the contact
+    angle jumps by 90° there. Away from it one face touches and nothing is flagged."""
+    r = 56.0
+    pts = [[0.0, 0.0], [100.0, 0.0], [150.0, -50.0], [200.0, 0.0], [700.0, 0.0]]
+    pose = place_rig(pts, np.array([140.0, 150.0, 160.0]), 313.0, r, r, 180.0, 88.0, 44.0)
+    assert_allclose(pose.rear_kink_deg, [0.0, 90.0, 0.0], atol=1e-6)
+    assert pose.rear_in_v.tolist() == [False, True, False]
+    assert math.isnan(pose.path_ratio[1])
+    # the centre of a wheel resting on both 45° faces: r/sin 45° above the notch bottom (by hand)
+    assert_allclose(pose.rear_centre_mm[1], [150.0, -50.0 + r / math.sin(math.radians(45.0))], atol=1e-9)

@@ -292,3 +292,77 @@ def test_a_course_inside_the_setup_still_walks(tmp_path, capsys):
     assert main(["walk", str(RIG), "--course", str(ROOT / "setups" / "course-kestrel-knuckle.toml"), "--json"]) == 0
     b = json.loads(capsys.readouterr().out)
     assert a["positions"] == b["positions"] and a["events"] == b["events"]
+
+
+# ----- path ratio on the demo course, a tyre in a V, memory ---------------------------------------
+
+def test_kestrel_ramp_foot_kinematics_worked_by_hand():
+    """The demo rig on Kestrel Knuckle with the rear on the flat and the front on the 28.03° ramp
+    (atan(213/400)), worked by hand (MODEL §4 and §6; a rigid link's ends have equal velocity
+    components along it, Meriam & Kraige, *Dynamics*, ch. 5):
+    rear centre (x, 56); the front centre on the line 57 mm above the ramp, D = √(313² + 1²) from
+    it; ψ its direction; ρ = cos ψ / cos(α − ψ); dψ/ds_r = ρ sin(α − ψ) + sin ψ, over D;
+    g = 40/38, K = g·114/112 = 1.07143; s_f/s_r = (K + (g − 1)·57·dψ/ds_r)/ρ.
+    At x = 100: ψ = 2.80°, ρ = 1.1042 > K, dψ/ds_r = 0.00166 /mm, s_f/s_r = 0.9749: the front,
+    overdriven by its gears, is kinematically underdriven here, so the rear is the faster axle
+    (the walk before the path ratio called this stretch a handover to the front). At x = 300:
+    ψ = 20.80°, ρ = 0.9423, s_f/s_r = 1.1418: the front is the faster axle."""
+    setup = load_setup(RIG).setup
+    walk = walk_course(setup, rear_x_mm=[100.0, 300.0],
+                       course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
+    alpha = math.atan2(213.0, 400.0)
+    g = 40.0 / 38.0
+    k = g * 114.0 / 112.0
+    reach = math.hypot(313.0, 1.0)
+    u = np.array([math.cos(alpha), math.sin(alpha)])
+    p0 = np.array([400.0 - 57.0 * math.sin(alpha), 57.0 * math.cos(alpha)])  # offset line through the foot
+    expected = {100.0: (1.1042, 0.9749, "rear"), 300.0: (0.9423, 1.1418, "front")}
+    for i, x in enumerate((100.0, 300.0)):
+        d = p0 - np.array([x, 56.0])
+        b, c = 2.0 * (d @ u), d @ d - reach ** 2
+        front = p0 + (-b + math.sqrt(b * b - 4.0 * c)) / 2.0 * u
+        psi = math.atan2(front[1] - 56.0, front[0] - x)
+        rho = math.cos(psi) / math.cos(alpha - psi)
+        rate = (rho * math.sin(alpha - psi) + math.sin(psi)) / reach
+        ratio = (k + (g - 1.0) * 57.0 * rate) / rho
+        assert walk.pose.front_angle_deg[i] == pytest.approx(math.degrees(alpha))
+        assert_allclose(walk.path_ratio[i], rho, rtol=1e-9)
+        assert_allclose(walk.mismatch[i], ratio, rtol=1e-9)
+        assert (rho, ratio) == pytest.approx(expected[x][:2], abs=1e-4)
+        assert walk.overdriven_here[i] == expected[x][2]
+
+
+def test_a_tyre_in_a_v_is_outside_the_model_and_said_so():
+    """Issue 11 item 4: a symmetric 45° notch narrower than the tyre. Where the rear tyre sits in
+    it (both faces touch, x = 150), the walk gives no forces, the state "outside", and an event that
+    says so; a position either side is solved normally."""
+    setup = load_setup(RIG).setup
+    course = Course("notch", ((0.0, 0.0), (100.0, 0.0), (150.0, -50.0), (200.0, 0.0), (900.0, 0.0)), 44.0)
+    walk = walk_course(setup, 5.0, course=course)
+    at = int(np.flatnonzero(np.isclose(walk.rear_x_mm, 150.0))[0])
+    assert walk.slipping[at] == "outside" and walk.in_v[at] == "rear"
+    assert math.isnan(walk.front_normal_g[at]) and math.isnan(walk.traction.rear_force_g[at])
+    assert walk.slipping[at - 1] != "outside" and walk.slipping[at + 1] != "outside"
+    texts = [e.text for e in walk.events if e.index == at]
+    assert any("rear tyre sits in a V" in t for t in texts)
+
+
+def test_walk_memory_follows_the_course_not_positions_times_points():
+    """Issue 12 item 7: a 10,000-point course (0.1 mm apart) walked every 2 mm: the traced peak
+    stays under 40 MB (before chunking, positions × points in view made it hundreds of MB), and
+    a walk with four times the positions peaks within 2× of it (chunks, not the product)."""
+    import tracemalloc
+
+    setup = load_setup(RIG).setup
+    x = np.arange(10_000) * 0.1
+    z = 20.0 * np.sin(x / 37.0) + 5.0 * np.sin(x / 3.1)
+    course = Course("fine", tuple(zip(x.tolist(), z.tolist())), 44.0)
+    peaks = []
+    for step in (8.0, 2.0):
+        tracemalloc.start()
+        walk = walk_course(setup, step, course=course)
+        peaks.append(tracemalloc.get_traced_memory()[1])
+        tracemalloc.stop()
+        assert len(walk) > 80
+    assert peaks[1] < 40e6
+    assert peaks[1] < 2.0 * peaks[0]
