@@ -82,12 +82,13 @@ class Units(NamedTuple):
 
     def angle(self, deg: float, signed: bool = False) -> str:
         """An angle in degrees, one decimal, with the sign when asked."""
+        deg = round(deg, 1) + 0.0  # + 0.0: a change that rounds to nothing never reads -0.0
         text = f"{deg:+.1f}" if signed else f"{deg:.1f}"
         return text + self.deg
 
     def slope(self, deg: float) -> str:
         """A slope as people say it: 30 deg, 30.5 deg (one decimal at most)."""
-        return f"{round(deg, 1):g}{self.deg}"
+        return f"{round(deg, 1) + 0.0:g}{self.deg}"
 
     def force(self, grams: float) -> str:
         """A force in grams-force (whole grams), or ounces-force in imperial (one decimal)."""

@@ -47,7 +47,7 @@ ASCII_FOLD = str.maketrans({
 SLOPE_MARK = {False: ("\u2502", "\u252c", "\u2534"), True: ("|", "+", "+")}
 MIN_WIDTH, MIN_HEIGHT = 24, 6
 NAMED_MARKS = (("B", "balance", "bal"), ("H", "handover", "hand"), ("L", "front lift", "lift"),
-               ("N", "rear lift (nose over)", "nose"))
+               ("N", "rear lift (nose over)", "nose"), ("M", "max grade", "max"))
 
 
 class Curves(NamedTuple):
@@ -90,7 +90,8 @@ def chart_data(analysis: Analysis, units: Units, baseline: Optional[Analysis] = 
     lo, hi = float(slopes.min()), float(slopes.max())
     a = analysis.angles_deg
     key = "handover" if analysis.load == "climb" else "handover_no_load"
-    named = {"B": a.get("balance"), "H": a.get(key), "L": a.get("front_lift"), "N": a.get("rear_lift")}
+    named = {"B": a.get("balance"), "H": a.get(key), "L": a.get("front_lift"), "N": a.get("rear_lift"),
+             "M": a.get("max_grade") if (a.get("max_grade") or 90.0) < 90.0 else None}  # 90: never ends
     marks = tuple((letter, round(v, 2)) for letter, v in named.items() if v is not None and lo <= v <= hi)
     return ChartData(current, base, float(analysis.setup.terrain.slope_deg), marks, units.unit("mass"),
                      (lo, hi), float(top))
@@ -275,8 +276,10 @@ def _plotext(data: ChartData, width: int, height: int, ascii_only: bool, slope_l
         plt.plot(list(b.slope_deg), list(b.rear), marker=base_m, color=_TAGS["base"][0])
     c = data.current
     if c.slope_deg:
-        plt.plot(list(c.slope_deg), list(c.front), marker=front_m, color=_TAGS["front"][0])
+        # the rear first, the front over it: where the lines meet the front (the overdriven axle's
+        # load, the one the flag is about) stays drawn, and the rear shows on either side
         plt.plot(list(c.slope_deg), list(c.rear), marker=rear_m, color=_TAGS["rear"][0])
+        plt.plot(list(c.slope_deg), list(c.front), marker=front_m, color=_TAGS["front"][0])
     if slope_line and lo <= data.slope_deg <= hi:
         plt.vline(data.slope_deg, _TAGS["slope"][0])
     for letter, angle in data.marks:
@@ -359,21 +362,23 @@ def legend(data: ChartData, width: int, ascii_only: bool, styles: dict[str, Styl
     deg = " deg" if ascii_only else "\u00b0"
     here = f"{data.slope_deg:g}{deg}"
     front_mark, rear_mark = ("*", "o") if ascii_only else ("\u2501", "\u2501")
-    base_mark = "..." if ascii_only else "\u2508"
+    base_mark = "." if ascii_only else "\u2508"  # the baseline's own mark
     bar = "|" if ascii_only else "\u2502"
     letters = {letter for letter, _ in data.marks}
     out = Text()
-    for level in range(3):  # 0: words, 1: short words, 2: letters only for the marks
+    # 0: words, 1: short words, 2: short words without the slope (the form shows it), 3: letters
+    for level in range(4):
         gap = " " if level == 0 else ""
         out = Text(no_wrap=True, overflow="crop", end="")
         out.append(f"{front_mark}{gap}F front ", styles["front"])
         out.append(f"{rear_mark}{gap}R rear ", styles["rear"])
         if data.baseline is not None:
             out.append(f"{base_mark}{gap}{'baseline' if level == 0 else 'base'} ", styles["base"])
-        out.append(f"{bar}{gap}{'slope ' if level == 0 else ''}{here} ", styles["slope"])
+        if level < 2:
+            out.append(f"{bar}{gap}{'slope ' if level == 0 else ''}{here} ", styles["slope"])
         for letter, words, short in NAMED_MARKS:
             if letter in letters:
-                out.append(f"{letter} {words} " if level == 0 else f"{letter} {short} " if level == 1
+                out.append(f"{letter} {words} " if level == 0 else f"{letter} {short} " if level < 3
                            else f"{letter} ", styles["marks"])
         out.rstrip()
         if out.cell_len <= width:

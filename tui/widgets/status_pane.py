@@ -76,19 +76,24 @@ class FlagLine(Widget):
 
 
 class StatusPane(Widget):
-    """The plain-words status at the setup's slope, the baseline comparison and one note line.
+    """The plain-words status at the setup's slope, the baseline comparison, the suggested fixes
+    and one note line.
 
-    Not reactives: a new layout (the whole screen) is asked for only when the number of lines
-    changes, so a step that changes the words repaints the lines that changed alone.
+    Its height is fixed (the stylesheet's), so the chart above keeps its size and scale while
+    lines come and go; when the words do not fit, the status lines go from the last up (the note,
+    the fixes and the comparison stay). Not reactives: a step that changes the words repaints the
+    lines that changed alone. To show more facts, add them to `StatusView.lines` (in the order they
+    should survive) or a part to `_parts`.
     """
 
-    COMPONENT_CLASSES = {"status-pane--compare", "status-pane--note", "status-pane--error"}
+    COMPONENT_CLASSES = {"status-pane--compare", "status-pane--note", "status-pane--error", "status-pane--fixes"}
 
     def __init__(self, note: tuple[str, str] = ("", "info"), *, id: Optional[str] = None) -> None:
         super().__init__(id=id)
         self._view: Optional[StatusView] = None
         self._note = note
-        self._style_cache = StyleCache(self, "status-pane", ("compare", "note", "error"), partial=False)
+        self._fixes = ""
+        self._style_cache = StyleCache(self, "status-pane", ("compare", "note", "error", "fixes"), partial=False)
         self._lines_key = None  # (view, note, width, styles version) that `_lines` were wrapped for
         self._lines: list[Text] = []  # the words wrapped to the width, as on screen
         self._strips: list[Optional[Strip]] = []
@@ -109,6 +114,17 @@ class StatusPane(Widget):
             self._changed()
 
     @property
+    def fixes(self) -> str:
+        """One line of suggested changes for the current verdict ("" for none)."""
+        return self._fixes
+
+    @fixes.setter
+    def fixes(self, words: str) -> None:
+        if words != self._fixes:
+            self._fixes = words
+            self._changed()
+
+    @property
     def note(self) -> tuple[str, str]:
         return self._note
 
@@ -118,15 +134,46 @@ class StatusPane(Widget):
             self._note = note
             self._changed()
 
+    def _parts(self) -> list[tuple[int, Text]]:
+        """(priority, text) of each part, in screen order; the lowest priority goes first when the
+        pane is too short: status lines from the last up, then the comparison."""
+        styles = self._style_cache.styles()[0]
+        parts: list[tuple[int, Text]] = []
+        if self._view is not None:
+            count = len(self._view.lines)
+            parts += [(count - i, Text(line)) for i, line in enumerate(self._view.lines)]
+            if self._view.compare:
+                parts.append((count + 1, Text(self._view.compare, styles["compare"])))
+        if self._fixes:
+            parts.append((1000, Text(self._fixes, styles["fixes"])))
+        words, severity = self._note
+        if words:
+            parts.append((1001, Text(words, styles["error" if severity == "error" else "note"])))
+        return parts
+
+    def _fitted(self, width: int, height: int) -> list[Text]:
+        """Every part wrapped to `width`; parts dropped by priority until they fit `height` lines."""
+        wrapped = [(p, _wrapped(text, width, self.app.console)) for p, text in self._parts()]
+        total = sum(len(lines) for _p, lines in wrapped)
+        for p in sorted(p for p, _lines in wrapped):
+            if total <= height or height <= 0:
+                break
+            i = next(i for i, (q, _l) in enumerate(wrapped) if q == p)
+            total -= len(wrapped[i][1])
+            del wrapped[i]
+        lines = [line for _p, group in wrapped for line in group]
+        return lines[-height:] if height > 0 and len(lines) > height else lines
+
     def _wrap(self, width: int) -> None:
         """Wrap the words to `width`; keep the strips of the lines that did not change."""
         self._style_cache.styles()
-        key = (self._view, self._note, width, self._style_cache.version)
+        height = self.size.height if self.is_mounted else 0
+        key = (self._view, self._note, self._fixes, width, height, self._style_cache.version)
         if key == self._lines_key:
             return
         old, old_strips = self._lines, self._strips
-        same_width = self._lines_key is not None and self._lines_key[2:] == key[2:]
-        lines = _wrapped(self.render(), width, self.app.console) if self._view or self._note[0] else []
+        same_width = self._lines_key is not None and self._lines_key[3:] == key[3:]
+        lines = self._fitted(width, height)
         self._strips = [old_strips[y] if same_width and y < len(old) and old[y] == line else None
                         for y, line in enumerate(lines)]
         self._lines, self._lines_key = lines, key
@@ -140,7 +187,7 @@ class StatusPane(Widget):
         old = self._lines
         self._wrap(width)
         if len(old) != len(self._lines):
-            self.refresh(layout=True)
+            self.refresh()  # the pane's height is fixed: no new layout, only its own lines
             return
         regions = changed_regions(old, self._lines)
         if regions:
@@ -162,15 +209,5 @@ class StatusPane(Widget):
         return strip
 
     def render(self) -> Text:
-        styles = self._style_cache.styles()[0]
-        text = Text()
-        if self._view is not None:
-            text.append("\n".join(self._view.lines))
-            if self._view.compare:
-                text.append("\n")
-                text.append(self._view.compare, styles["compare"])
-        words, severity = self._note
-        if words:
-            text.append("\n" if text else "")
-            text.append(words, styles["error" if severity == "error" else "note"])
-        return text
+        """Every part, none dropped (what `render_line` shows when the pane is tall enough)."""
+        return Text("\n").join(text for _p, text in self._parts())
