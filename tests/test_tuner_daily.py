@@ -212,3 +212,33 @@ def test_page_keys_jump_by_section_and_ballast_names_show_in_full(tmp_path):
             assert "brass front knuckles (" in screen_text(app)  # the demo's first item, not "brass front..."
 
     run(go())
+
+
+def test_flag_suggests_fixes_after_the_keys_pause_and_f_opens_the_planner_with_them(tmp_path):
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            assert app.flag.level == "warn"  # the demo at 30 deg: the overdriven front lets go first
+            for _ in range(40):
+                await pilot.pause(0.1)
+                if app.status.fixes:
+                    break
+            words = app.status.fixes
+            # matching ground speeds ends wind-up: p = 100 (D_r / D_f - 1) = 100 (112/114 - 1) = -1.75 %
+            # (tyre sizes from the demo file, worked by hand)
+            assert words.startswith("Fix:") and "-1.8 %" in words and "(f: plan)" in words
+            await pilot.press("f")
+            await pilot.pause()
+            assert type(app.screen).__name__ == "PlanScreen"
+            assert app.screen.query_one("#p-angle").value == "handover"
+            assert float(app.screen.query_one("#p-value").value) >= app.setup.terrain.slope_deg
+            await pilot.press("escape")
+            await pilot.pause()
+            # a setup with no verdict to fix: the line goes at once
+            app.query_one(SetupForm).focus_key("terrain.slope_deg")
+            await pilot.press(*"2", "enter")
+            await pilot.pause()
+            assert app.flag.level == "ok" and app.status.fixes == ""
+
+    run(go())

@@ -33,6 +33,7 @@ from slopetune.engine import LoadedSetup, Setup, SetupError, load_setup  # numpy
 from slopetune.engine.safe_text import one_line
 
 from .app_files import FileActions
+from .app_fixes import FixActions
 from .app_screens import ScreenActions
 from .history import History
 from .throttle import Throttle
@@ -116,7 +117,7 @@ class TunerScreen(Screen):
             self.call_after_refresh(self.query_one(SetupForm).focus)
 
 
-class SlopeTuneApp(FileActions, ScreenActions, App[int]):
+class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
     """slopetune's tuner. `run()` returns the exit code."""
 
     CSS_PATH = "app.tcss"
@@ -131,8 +132,9 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         Binding("u", "toggle_units", "Units: metric / imperial", show=False, id="tuner.units"),
         Binding("r", "toggle_range", "Slope range: climbs / with descents", show=False, id="tuner.range"),
         Binding("m", "measure", "Measure the rig (scales, tilt board)", show=False, id="tuner.measure"),
-        Binding("c", "course", "Course view (if installed)", show=False, id="tuner.course"),
-        Binding("p", "plan", "Plan a setup (if installed)", show=False, id="tuner.plan"),
+        Binding("c", "course", "Course view", show=False, id="tuner.course"),
+        Binding("p", "plan", "Plan a setup", show=False, id="tuner.plan"),
+        Binding("f", "fix", "Plan the suggested fix", show=False, id="tuner.fix"),
         Binding("ctrl+z,z", "undo", "Undo", id="tuner.undo"),
         Binding("ctrl+y,Z", "redo", "Redo", show=False, id="tuner.redo"),
         Binding("h", "headings", "Headings: steepest face from every direction", show=False, id="tuner.headings"),
@@ -243,6 +245,8 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         view = status_view(self.analysis, self.units, self._baseline_analysis)
         self.flag.show(view.level, view.flag)
         self.status.view = view
+        if view.level == "ok":
+            self.status.fixes = ""  # nothing to fix: no stale advice while the planner is booked
         self.word_updates.mark()
         if chart_now:
             self.chart_updates.mark()
@@ -250,6 +254,7 @@ class SlopeTuneApp(FileActions, ScreenActions, App[int]):
         elif not self._chart_pending:
             self._chart_pending = True
             self.call_after_refresh(self._chart_after_words)
+        self._schedule_fixes()  # the planner runs once the keys pause, in a worker
 
     def _chart_after_words(self) -> None:
         self._chart_pending = False

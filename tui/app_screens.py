@@ -92,8 +92,8 @@ class ScreenActions:
         self._push("slopetune.tui.headings_screen", "HeadingsScreen", lambda cls: cls(self.setup), apply,
                    "the headings screen")
 
-    def action_plan(self) -> None:
-        """Let the planner suggest a setup; apply it if accepted."""
+    def action_plan(self, target=None, lever: str = "ballast", item: int = 0) -> None:
+        """Let the planner suggest a setup; apply it if accepted (`target`, `lever`, `item` pre-fill it)."""
         before = self.setup
 
         def apply(setup: Optional[Setup]) -> None:
@@ -115,4 +115,5 @@ class ScreenActions:
                           "Replace", "Keep it", with_baseline,
                           otherwise=lambda: self._replace_setup(setup, note, what="plan accepted"))
 
-        self._push("slopetune.tui.screens.plan", "PlanScreen", lambda cls: cls(self.setup), apply, "the planner")
+        self._push("slopetune.tui.screens.plan", "PlanScreen",
+                   lambda cls: cls(self.setup, target=target, lever=lever, item=item), apply, "the planner")

@@ -148,10 +148,15 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
             self.result = result
             self.problem = problem
 
-    def __init__(self, setup: Setup, ascii_only: Optional[bool] = None) -> None:
+    def __init__(self, setup: Setup, ascii_only: Optional[bool] = None, *, target: Optional[Target] = None,
+                 lever: str = "ballast", item: int = 0) -> None:
+        """`target`, `lever` and `item` pre-fill the fields (the tuner's suggested fixes)."""
         super().__init__()
         self.setup = setup
         self._ascii_only = ascii_only
+        self._start_target = target
+        self._start_lever = lever if lever in LEVER_KINDS else "ballast"
+        self._start_item = item if 0 <= item < len(setup.rig.ballast) else 0
         self.result: Optional[Plan] = None
         self._generation = 0
         self._settle: Optional[Timer] = None
@@ -169,6 +174,9 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
         """A first target a builder would likely ask for: push the handover (or balance) up 2°."""
         from slopetune.engine import analyse
 
+        if self._start_target is not None:
+            return self._start_target.angle, self._start_target.value_deg
+
         a = analyse(self.setup, [self.setup.terrain.slope_deg])
         name = "handover" if a.overdrive.overdriven_axle is not None else "balance"
         now = angle_value_deg(a, name)
@@ -178,19 +186,23 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
         rig = self.setup.rig
         angle, value = self._defaults()
         angles = list(ANGLE_CHOICES.items())
-        lo, hi = default_limits("ballast", self.setup)
+        lever = self._start_lever
+        lo, hi = default_limits(lever, self.setup)
+        op = self._start_target.op if self._start_target is not None else ">="
         items = [(str(i), f"{i + 1}: {one_line(b.name)}") for i, b in enumerate(rig.ballast)] or [("-1", "no ballast items")]
         with Vertical(id="plan-box"):
             yield Static("Plan a change: what reaches a target angle", id="plan-title")
             with Horizontal(classes="p-row"):
                 yield Static("Target", classes="p-label")
                 yield Choice(angles, [k for k, _ in angles].index(angle), id="p-angle", classes="p-choice")
-                yield Choice([(">=", "at least"), ("<=", "at most")], 0, id="p-op", classes="p-op")
+                yield Choice([(">=", "at least"), ("<=", "at most")], [">=", "<="].index(op), id="p-op",
+                             classes="p-op")
                 yield Input(_fmt(value), id="p-value", compact=True, classes="p-input")
                 yield Static(self._deg().strip(), classes="p-unit")
             with Horizontal(classes="p-row"):
                 yield Static("Lever", classes="p-label")
-                yield Choice([(k, LEVER_WORDS[k]) for k in LEVER_KINDS], 0, id="p-lever", classes="p-choice -wide")
+                yield Choice([(k, LEVER_WORDS[k]) for k in LEVER_KINDS], LEVER_KINDS.index(lever), id="p-lever",
+                             classes="p-choice -wide")
             with Horizontal(classes="p-row", id="p-place"):
                 yield Static("at x", classes="p-small")
                 yield Input(_fmt(rig.wheelbase_mm), id="p-x", compact=True, classes="p-input")
@@ -199,7 +211,7 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
                 yield Static("mm", classes="p-unit")
             with Horizontal(classes="p-row", id="p-which"):
                 yield Static("item", classes="p-small")
-                yield Choice(items, 0, id="p-item", classes="p-choice -wide")
+                yield Choice(items, self._start_item if rig.ballast else 0, id="p-item", classes="p-choice -wide")
             with Horizontal(classes="p-row"):
                 yield Static("limits", classes="p-small")
                 yield Input(_fmt(lo), id="p-min", compact=True, classes="p-input")
@@ -211,7 +223,7 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
             yield Static(KEYS, id="plan-keys")
 
     def on_mount(self) -> None:
-        self._show_lever_fields("ballast")
+        self._show_lever_fields(self._start_lever)
         self.query_one("#p-value", Input).focus()
         self._schedule()
 
