@@ -49,7 +49,8 @@ MAX_POSITIONS = 200_000  # a typo in --step should not eat the memory
 CHUNK_ELEMENTS = 1 << 18  # positions × terrain points in view, per chunk (2 MiB per float array)
 OUTSIDE = len(STATES)  # course only: a tyre in a V, or the front jammed against a wall
 WALK_STATES = STATES + ("outside",)
-_K_PASSES = 3  # fixed-point passes for load-dependent rolling diameters
+_K_PASSES = 12  # at most, fixed-point passes for load-dependent rolling diameters
+_K_TOL = 1e-9  # share of the weight: the loads no longer move, K matches them
 
 
 @dataclass(frozen=True)
@@ -201,6 +202,7 @@ def _solve_chunk(setup, rig, gear, pose: RigPose):
     nf, nr = np.full(rho.shape, level_f), np.full(rho.shape, level_r)
     passes = _K_PASSES if (loss_f or loss_r) else 1
     for _ in range(passes):
+        before = (nf, nr)
         d_f = _rolling_dia(dia_f, loss_f, rig.tire_dia_front_mm, nf, level_f)
         d_r = _rolling_dia(dia_r, loss_r, rig.tire_dia_rear_mm, nr, level_r)
         k = gear * d_f / d_r
@@ -212,6 +214,10 @@ def _solve_chunk(setup, rig, gear, pose: RigPose):
         )
         nf = np.where(np.isfinite(loads.front_normal_g), loads.front_normal_g, level_f)
         nr = np.where(np.isfinite(loads.rear_normal_g), loads.rear_normal_g, level_r)
+        moved = max(float(np.max(np.abs(nf - before[0]), initial=0.0)),
+                    float(np.max(np.abs(nr - before[1]), initial=0.0)))
+        if moved <= _K_TOL * rig.mass_g:
+            break
     mismatch = np.where(outside, np.nan, (k + q) / rho)
     return loads, k, mismatch, outside
 

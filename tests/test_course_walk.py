@@ -366,3 +366,25 @@ def test_walk_memory_follows_the_course_not_positions_times_points():
         assert len(walk) > 80
     assert peaks[1] < 40e6
     assert peaks[1] < 2.0 * peaks[0]
+
+
+def test_speed_ratio_follows_the_loads_through_the_rolling_diameters(monkeypatch):
+    """MODEL §4: with a rear tyre that loses 0.5 mm of rolling diameter per 100 g, K at each
+    position is g·D_f(N_f)/D_r(N_r) with D_i(N) = D_i − d_i (N − N_i,level)/100 at that position's
+    own loads (written out here; level loads W b/L and W − W b/L of the effective rig, worked by
+    hand in test_kestrel_knuckle_states_worked_by_hand: b = 186.15 mm of 313)."""
+    import slopetune.engine.course_walk as cw
+
+    real = cw._tyre_keys
+    monkeypatch.setattr(cw, "_tyre_keys", lambda s: ((114.0, 112.0), (0.0, 0.5), (20.0, 20.0)))
+    setup = load_setup(RIG).setup
+    walk = cw.walk_course(setup, 20.0, course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
+    w, b = 2438.0, 453828.5 / 2438.0
+    level_r = w - w * b / 313.0
+    d_r = np.minimum(112.0 - 0.5 * (walk.rear_normal_g - level_r) / 100.0, 112.0)
+    k = (40.0 / 38.0) * 114.0 / d_r
+    ok = np.isfinite(walk.rear_normal_g)
+    assert ok.sum() > 30
+    assert_allclose(walk.speed_ratio[ok], k[ok], rtol=1e-6)  # the fixed point has converged
+    assert np.ptp(walk.speed_ratio[ok]) > 0.005  # the loads really move K along the course
+    assert real is not None
