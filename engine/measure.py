@@ -7,11 +7,50 @@ References
    by lifting one axle).
 .. [3] Serway & Beichner, *Physics for Scientists and Engineers*, 5th ed., ch. 5 (static friction
    on an incline at the point of sliding: ``μ_s = tan α``).
+
+Plausibility checks (`bias_checks`, `lift_checks`, `slide_angle_checks`) say which reading looks
+wrong before a value reaches a setup: a refusal where the reading cannot be right, a warning where
+it is possible but more likely a slip of the hand. During an axle lift the wheels must roll freely
+(driveline disengaged) and the suspension be locked [1]_: a wound-up driveline puts a horizontal
+couple on the scales and biases the height; the axle height (loaded tyre radius) passes one for one
+into it.
 """
 
 from __future__ import annotations
 
+import math
+from dataclasses import dataclass
+from typing import Optional
+
 import numpy as np
+
+from .setup_model import FIELDS
+
+# Decimals a measured value is stored and shown with: about what the readings resolve (a kitchen
+# scale to 1 g of a 2 kg rig is 0.05 %; a phone inclinometer to 0.5 deg moves mu by about 0.02).
+DIGITS = {"rig.front_bias_pct": 1, "rig.cg_height_mm": 1, "grip.mu_static": 2}
+
+# The highest static friction a setup file takes (one place: the file's own rule).
+MU_STATIC_MAX = FIELDS["grip.mu_static"].hi
+
+
+@dataclass(frozen=True)
+class ReadingCheck:
+    """One reading that looks wrong: which (`reading`, `index` of a lift), how bad, and why.
+
+    `reading` is one of "total", "front", "level", "lift", "axle", "wheelbase", "angle" (the caller
+    names it in its own words: an option on the command line, a field on the screen); `index` is the
+    lift's position as given (None for the others). `why` is one line without the reading's name.
+    """
+
+    reading: str
+    index: Optional[int]
+    refuse: bool
+    why: str
+
+
+def _g(x: float) -> str:
+    return f"{x:.6g}"
 
 
 def front_bias_pct(front_reading_g, total_g):
@@ -85,3 +124,78 @@ def mu_from_slide_angle(slide_angle_deg):
         ``μ_s = tan α`` [3]_. [-]
     """
     return np.tan(np.radians(np.asarray(slide_angle_deg, dtype=float)))
+
+
+def bias_checks(front_reading_g: float, total_g: float) -> list[ReadingCheck]:
+    """Why a front-axle reading cannot give a front bias (empty: it can)."""
+    if not front_reading_g > 0:
+        return [ReadingCheck("front", None, True, f"{_g(front_reading_g)} g: must be above 0 g")]
+    if front_reading_g >= total_g:
+        return [ReadingCheck("front", None, True, f"{_g(front_reading_g)} g is not below the total weight "
+                                                  f"{_g(total_g)} g (one axle carries part of the whole rig)")]
+    return []
+
+
+def lift_checks(weight_g, wheelbase_mm, axle_height_mm, level_front_g, lift_mm, lifted_front_g) -> list[ReadingCheck]:
+    """Readings of an axle lift that look wrong, refusals first (empty: all plausible).
+
+    Refused: a reading at or above the total weight or not above 0, a lift outside (0, L), a fit that
+    puts the CG below the axle (it must sit above the axle line for the front reading to grow as the
+    rear rises [1]_, [2]_; a crawler's CG is above its axles: a fit below them comes from a reading,
+    not the rig). Warned: a front reading that falls as the rear rises (below the level reading, or
+    below the reading at a smaller lift), while the fit as a whole stays above the axle.
+    """
+    lifts = [float(x) for x in np.atleast_1d(lift_mm)]
+    readings = [float(x) for x in np.atleast_1d(lifted_front_g)]
+    out: list[ReadingCheck] = []
+    if not axle_height_mm > 0:
+        out.append(ReadingCheck("axle", None, True, f"{_g(axle_height_mm)} mm: must be above 0 mm"))
+    elif axle_height_mm >= wheelbase_mm:
+        out.append(ReadingCheck("axle", None, True, f"{_g(axle_height_mm)} mm: must be below the wheelbase "
+                                                     f"{_g(wheelbase_mm)} mm (it is the loaded tyre radius)"))
+    if not level_front_g > 0:
+        out.append(ReadingCheck("level", None, True, f"{_g(level_front_g)} g: must be above 0 g"))
+    elif level_front_g >= weight_g:
+        out.append(ReadingCheck("level", None, True, f"{_g(level_front_g)} g is not below the total weight "
+                                                      f"{_g(weight_g)} g"))
+    if len(lifts) != len(readings):
+        out.append(ReadingCheck("lift", None, True, "one front reading is needed for every lift height"))
+        return out
+    for i, (h, g) in enumerate(zip(lifts, readings)):
+        if not 0 < h < wheelbase_mm:
+            out.append(ReadingCheck("lift", i, True, f"lift {_g(h)} mm: must be above 0 and below the "
+                                                      f"wheelbase {_g(wheelbase_mm)} mm"))
+        elif not g > 0:
+            out.append(ReadingCheck("lift", i, True, f"front reading {_g(g)} g: must be above 0 g"))
+        elif g >= weight_g:
+            out.append(ReadingCheck("lift", i, True, f"front reading {_g(g)} g is not below the total weight "
+                                                      f"{_g(weight_g)} g"))
+    if out:
+        return out
+    height = cg_height_from_lift_mm(weight_g, wheelbase_mm, axle_height_mm, level_front_g, lifts, readings)
+    if not height > axle_height_mm:
+        which = None if len(lifts) > 1 else 0
+        out.append(ReadingCheck("lift", which, True,
+                                f"the front reading{'s fall' if len(lifts) > 1 else ' falls'} as the rear rises: "
+                                f"that puts the CG at {height:.1f} mm, not above the axle height "
+                                f"{_g(axle_height_mm)} mm; is the scale under the front and the rear raised?"))
+        return out
+    order = sorted(range(len(lifts)), key=lambda i: lifts[i])
+    before_g, before = float(level_front_g), "the level reading"
+    for i in order:
+        if readings[i] < before_g:
+            out.append(ReadingCheck("lift", i, False,
+                                    f"front reading {_g(readings[i])} g at {_g(lifts[i])} mm is below "
+                                    f"{before} {_g(before_g)} g: it should grow as the rear rises"))
+        before_g, before = readings[i], f"the reading at {_g(lifts[i])} mm"
+    return out
+
+
+def slide_angle_checks(slide_angle_deg: float, mu_max: float = MU_STATIC_MAX) -> list[ReadingCheck]:
+    """Why a slide angle cannot give a static mu a setup takes (mu above 0 and at most `mu_max`)."""
+    top = math.degrees(math.atan(mu_max))
+    if not 0 < slide_angle_deg <= top:
+        return [ReadingCheck("angle", None, True,
+                             f"{_g(slide_angle_deg)} deg: must be above 0 and at most {top:.1f} deg "
+                             f"(mu_static at most {mu_max:g}, the setup file's limit)")]
+    return []

@@ -141,3 +141,70 @@ def test_mu_from_board_rise_and_length_by_pythagoras(length_mm, rise_share):
     run = math.sqrt(length_mm ** 2 - rise ** 2)
     angle = math.degrees(math.asin(rise / length_mm))
     assert measure.mu_from_slide_angle(angle) == pytest.approx(rise / run, rel=1e-9)
+
+
+# ---- plausibility of the readings (issue: refuse or warn, naming the reading) -------------------
+# A rig worked by hand for these: W 2000 g, L 300 mm, front bias 50 % (b 150 mm), axle height
+# r 50 mm. Rear raised H 150 mm: sin θ = 0.5, θ = 30 deg, cos θ = 0.866025, tan θ = 0.577350.
+# With the CG at h (tilted geometry, ISO 10392 set-up): W_f = W (b cos θ + (h − r) sin θ)/(L cos θ)
+#   h 100 mm: 2000 (129.904 + 25.000)/259.808 = 1192.45 g   (worked by hand)
+#   h  30 mm: 2000 (129.904 − 10.000)/259.808 =  923.02 g   (worked by hand: CG below the axle)
+
+
+def test_hand_worked_axle_lift_gives_back_100_mm():
+    # Worked by hand above; the exact form h = r + L ΔW/(W tan θ) [ISO 10392]: 50 + 300·192.45/(2000·0.57735)
+    # = 50 + 57735/1154.7 = 100.0 mm.
+    h = measure.cg_height_from_lift_mm(2000.0, 300.0, 50.0, 1000.0, 150.0, 1192.45)
+    assert h == pytest.approx(100.0, abs=0.01)
+    assert measure.lift_checks(2000.0, 300.0, 50.0, 1000.0, [150.0], [1192.45]) == []
+
+
+def test_a_cg_below_the_axle_is_refused_naming_the_lift():
+    # Hand-worked 923.02 g: the front reading falls as the rear rises, the fit puts h at 30 mm < r.
+    checks = measure.lift_checks(2000.0, 300.0, 50.0, 1000.0, [150.0], [923.02])
+    assert len(checks) == 1 and checks[0].refuse and checks[0].reading == "lift" and checks[0].index == 0
+    assert "30.0 mm" in checks[0].why and "axle height 50 mm" in checks[0].why
+
+
+def test_a_reading_that_falls_between_lifts_is_a_warning_not_a_refusal():
+    # 50 mm: 1060 g, 100 mm: 1050 g -- the second falls though the fit stays above the axle.
+    # Worked by hand: x = W tan(asin(H/L))/L = 1.1269, 2.3570; ΔW = 60, 50; least-squares slope
+    # (67.61 + 117.85)/(1.2699 + 5.5555) = 27.17, so h = 77.2 mm, above r = 50 mm.
+    assert measure.cg_height_from_lift_mm(2000.0, 300.0, 50.0, 1000.0, [50.0, 100.0], [1060.0, 1050.0]) == \
+        pytest.approx(77.2, abs=0.05)
+    checks = measure.lift_checks(2000.0, 300.0, 50.0, 1000.0, [50.0, 100.0], [1060.0, 1050.0])
+    assert [(c.reading, c.index, c.refuse) for c in checks] == [("lift", 1, False)]
+    assert "1050 g at 100 mm" in checks[0].why and "1060 g" in checks[0].why
+    # listed out of order, the same pair is named (the check sorts by lift, not by position)
+    checks = measure.lift_checks(2000.0, 300.0, 50.0, 1000.0, [100.0, 50.0], [1050.0, 1060.0])
+    assert [(c.index, c.refuse) for c in checks] == [(0, False)]
+
+
+@pytest.mark.parametrize("level, lift, reading, which", [
+    (2100.0, 150.0, 1192.45, "level"),    # the level front reading above the 2000 g total
+    (2000.0, 150.0, 1192.45, "level"),    # equal to it: the rear would carry nothing
+    (1000.0, 150.0, 2500.0, "lift"),      # a lifted reading above the total
+    (1000.0, 300.0, 1192.45, "lift"),     # a lift equal to the wheelbase: asin(1), the rig on end
+    (0.0, 150.0, 1192.45, "level"),
+])
+def test_readings_above_the_total_or_outside_the_geometry_are_refused(level, lift, reading, which):
+    checks = measure.lift_checks(2000.0, 300.0, 50.0, level, [lift], [reading])
+    assert checks and checks[0].refuse and checks[0].reading == which
+
+
+def test_front_bias_reading_checks():
+    # Gillespie ch. 2: the front axle carries part of W, so 0 < W_f < W.
+    assert measure.bias_checks(1190.0, 2000.0) == []
+    for front in (2000.0, 2400.0, 0.0, -5.0):
+        (check,) = measure.bias_checks(front, 2000.0)
+        assert check.refuse and check.reading == "front"
+
+
+def test_slide_angle_limit_is_the_files_mu_limit():
+    # The file takes mu_static <= 5 (setup_model); atan 5 = 78.69 deg (four-figure tables).
+    # Serway & Beichner ch. 5: mu_s = tan α, so 78.6 deg (tan 4.989) is taken and 78.8 (tan 5.03) is not.
+    assert measure.MU_STATIC_MAX == 5.0
+    assert measure.slide_angle_checks(78.6) == []
+    for angle in (78.8, 80.0, 90.0, 0.0, -3.0):
+        (check,) = measure.slide_angle_checks(angle)
+        assert check.refuse and check.reading == "angle" and "78.7" in check.why

@@ -88,7 +88,21 @@ def _put(table, key: str, value) -> None:
     value = _tidy(value)
     if key in table and _same(table[key].unwrap() if hasattr(table[key], "unwrap") else table[key], value):
         return
+    before = table[key] if key in table else None
     table[key] = value
+    _keep_comment_column(before, table[key] if key in table else None)
+
+
+def _keep_comment_column(before, after) -> None:
+    """A comment after a rewritten value stays in its column (87.8 for 88 does not push it right)."""
+    trivia_before, trivia_after = getattr(before, "trivia", None), getattr(after, "trivia", None)
+    if trivia_before is None or trivia_after is None or not trivia_after.comment:
+        return
+    try:
+        width = len(before.as_string()) + len(trivia_before.comment_ws)
+        trivia_after.comment_ws = " " * max(1, width - len(after.as_string()))
+    except (AttributeError, TypeError):  # an item kind without a plain rendering: leave its spacing
+        return
 
 
 def _is_table(value) -> bool:

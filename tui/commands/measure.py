@@ -1,139 +1,228 @@
-"""`slopetune measure bias|cg-height|mu`: scale readings and tilt angles into setup values."""
+"""`slopetune measure KIND`: scale readings and tilt angles into setup values.
+
+Every reading is checked for plausibility first (`engine.measure`): a reading that cannot be right is
+refused in one line naming it (exit 2), one that is possible but suspicious is a one-line warning on
+stderr and the result is still given.
+"""
 
 from __future__ import annotations
 
 import argparse
-import math
+import sys
+from typing import Optional
 
-from slopetune.engine import SetupError, load_setup
-from slopetune.engine.setup_model import FIELDS, rule_for
-from slopetune.engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
+from slopetune.engine import SetupError, check_value, load_setup
+from slopetune.engine.measure import (
+    DIGITS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
+    mu_from_slide_angle, slide_angle_checks,
+)
+from slopetune.engine.setup_model import rule_for
+
+from ._args import ArgumentRefused, number
+
+KINDS = ("bias", "cg-height", "mu")
 
 HELP = """\
-Turn bench measurements into setup values; --write FILE stores the result in a setup
-file (comments and your own keys are kept; the file is replaced atomically).
+Turn bench measurements into setup values. --from FILE takes the total weight, wheelbase and
+axle height a reading needs from a setup file; --write FILE stores the result in a setup file
+(rounded as printed; comments and your own keys are kept; the file is replaced atomically).
 
   bias       front axle on a scale, rig level: front bias = front reading / total  [%]
   cg-height  ISO 10392 axle lift: raise the rear axle by H mm (one or more lifts),
              read the front scale each time: h = r + L (Wf1 - Wf0) / (W tan(asin(H/L)))
+             The wheels must roll freely (driveline out) and the suspension be locked.
   mu         tilt board, wheels blocked, raise until the rig slides: mu_s = tan(angle)
 
+Readings that cannot be right are refused, naming the reading; suspicious ones are warned about.
 Units: grams, millimetres, degrees. Keep hands clear of the driveline while lifting.
 """
 
+CG_HELP = """\
+CG height by the ISO 10392 axle-lift method. Put the front axle on a scale, rig level, and note
+the reading; raise the rear axle by H mm (a block under both rear tyres) and note the front
+reading again; more lifts give a least-squares fit.
 
-def _finite(name: str, value: float) -> float:
-    if not math.isfinite(value):
-        raise SetupError(f"{name} {value}: must be a finite number", "command line")
-    return value
+Before lifting: take a driveshaft out (or otherwise let the wheels roll freely) and lock the
+suspension (zip ties or solid links). A wound-up driveline pushes sideways on the scale and a
+squatting suspension moves the CG: both bias the height. The axle height is the loaded tyre
+radius; an error in it passes one for one into the CG height.
 
+  h = r + L (Wf1 - Wf0) / (W tan(asin(H/L)))
 
-def _positive(name: str, value: float, rule: str = "rig.mass_g") -> float:
-    """A reading > 0 and inside the range the setup file allows for that kind of value, so an
-    absurd reading (1e300 g, 5e-324 mm) is refused instead of printed as `inf %`."""
-    if not _finite(name, value) > 0:
-        raise SetupError(f"{name} {value:g}: must be > 0", "command line")
-    r = FIELDS[rule]
-    if value < 1e-6 or (r.hi is not None and value >= r.hi):
-        raise SetupError(f"{name} {value:g}: outside any sane reading; must be above 1e-06 and below "
-                         f"{r.hi:g} [{r.unit}]", "command line")
-    return value
+The front reading must grow as the rear rises (the CG sits above the axles): readings that
+fall are warned about, and a CG below the axle height is refused.
+"""
 
-
-def _result(key: str, value: float, label: str) -> float:
-    """The measured value, refused when the setup file could not hold it."""
-    problem = rule_for(key).problem(value)
-    if problem:
-        shown = f"{value:.6g}" if math.isfinite(value) else "no finite value"
-        raise SetupError(f"{label}: the readings give {key} = {shown}, which {problem}; check the readings",
-                         "command line")
-    return value
+MU_KEYS = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}
 
 
 def _lift_pair(text: str):
     try:
         h, g = text.split(":")
-        return float(h), float(g)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"{text!r}: give LIFT_MM:FRONT_G, e.g. 100:1206") from None
+        return number(h), number(g)
+    except (ValueError, argparse.ArgumentTypeError):
+        raise argparse.ArgumentTypeError(f"'{text}' is not LIFT_MM:FRONT_G, e.g. 100:1206") from None
+
+
+def _common(q) -> None:
+    q.add_argument("--from", dest="source", metavar="FILE",
+                   help="take readings not given here from this setup file (default: the --write file)")
+    q.add_argument("--write", metavar="FILE", help="store the result in this setup file")
+    q.set_defaults(func=run)
 
 
 def register(sub) -> None:
     p = sub.add_parser("measure", help="bench measurements into setup values", description=HELP,
                        formatter_class=argparse.RawDescriptionHelpFormatter)
-    kinds = p.add_subparsers(dest="kind", metavar="KIND", required=True)
+    kinds = p.add_subparsers(dest="kind", metavar="KIND", required=True, title="kinds")
 
     b = kinds.add_parser("bias", help="front bias from a front-axle scale reading")
-    b.add_argument("--front", type=float, required=True, metavar="G", help="front-axle reading, rig level [g]")
-    b.add_argument("--total", type=float, metavar="G", help="all-up weight [g] (default: the file's rig.mass_g)")
+    b.add_argument("--front", type=number, required=True, metavar="G", help="front-axle reading, rig level [g]")
+    b.add_argument("--total", type=number, metavar="G", help="all-up weight [g] (default: the file's rig.mass_g)")
 
-    c = kinds.add_parser("cg-height", help="CG height by raising the rear axle (ISO 10392)")
-    c.add_argument("--level-front", type=float, required=True, metavar="G", help="front reading, rig level [g]")
+    c = kinds.add_parser("cg-height", help="CG height by raising the rear axle (ISO 10392)", description=CG_HELP,
+                         formatter_class=argparse.RawDescriptionHelpFormatter)
+    c.add_argument("--level-front", type=number, required=True, metavar="G", help="front reading, rig level [g]")
     c.add_argument("--lift", type=_lift_pair, action="append", required=True, metavar="MM:G",
                    help="rear raised by MM, front reading G; repeat for several lifts (least squares)")
-    c.add_argument("--total", type=float, metavar="G", help="all-up weight [g] (default: the file's rig.mass_g)")
-    c.add_argument("--wheelbase", type=float, metavar="MM", help="[mm] (default: the file's)")
-    c.add_argument("--axle-height", type=float, metavar="MM",
-                   help="axle centre above the ground = loaded tyre radius [mm] (default: front tyre / 2)")
+    c.add_argument("--total", type=number, metavar="G", help="all-up weight [g] (default: the file's rig.mass_g)")
+    c.add_argument("--wheelbase", type=number, metavar="MM", help="[mm] (default: the file's)")
+    c.add_argument("--axle-height", type=number, metavar="MM",
+                   help="axle centre above the ground = loaded tyre radius [mm] (default: the file's mean tyre radius)")
 
     m = kinds.add_parser("mu", help="static friction from a tilt-board slide angle")
-    m.add_argument("--angle", type=float, required=True, metavar="DEG", help="board angle at the first slide [deg]")
-    m.add_argument("--axle", choices=("both", "front", "rear"), default="both",
+    m.add_argument("--angle", type=number, required=True, metavar="DEG", help="board angle at the first slide [deg]")
+    m.add_argument("--axle", choices=tuple(MU_KEYS), default="both",
                    help="which mu to write: the common one (both) or a per-axle override")
 
     for q in (b, c, m):
-        q.add_argument("--write", metavar="FILE", help="store the result in this setup file")
-        q.set_defaults(func=run)
+        _common(q)
 
 
-def _from_file(args, value, key: str, label: str):
-    if value is not None:
-        return value
-    if not args.write:
-        raise SetupError(f"{label}: needed (or give --write FILE to take it from the setup)", "command line")
-    return load_setup(args.write).setup.value(key)
+class _Source:
+    """The setup file that supplies missing readings (--from, else --write), read once when needed."""
+
+    def __init__(self, args) -> None:
+        self.path: Optional[str] = args.source or args.write
+        self._loaded = None
+        self.used: list[str] = []
+
+    def setup(self):
+        if self.path is None:
+            return None
+        if self._loaded is None:
+            self._loaded = load_setup(self.path)  # SetupError: one line from main, exit 2
+        return self._loaded.setup
+
+    def value(self, given, option: str, key: str, words: str):
+        """The option's value, else the file's `key`; a missing one names both ways to give it."""
+        if given is not None:
+            return given
+        setup = self.setup()
+        if setup is None:
+            raise ArgumentRefused(f"{option} is needed: give it, or --from FILE to take {words} from a setup")
+        self.used.append(words)
+        if key == "axle":
+            return (setup.rig.tire_dia_front_mm + setup.rig.tire_dia_rear_mm) / 4.0
+        return setup.value(key)
+
+
+# A reading below this is a typo or an underflow (5e-324), not a measurement [g or mm].
+TINY = 1e-6
+
+
+def _checked(value: float, option: str, key: str) -> float:
+    """A reading inside the setup file's own range for that kind of value (0 < a weight < 1e6 g), so an
+    absurd one (1e300 g, 5e-324 mm) is refused by name instead of giving `inf %` or 300 digits."""
+    rule = rule_for(key)
+    problem = rule.problem(value)
+    if problem is None and value < TINY:
+        problem = f"must be at least {TINY:g}"
+    if problem:
+        raise ArgumentRefused(f"{option} {value:g}: {problem}{' [' + rule.unit + ']' if rule.unit else ''}")
+    return value
+
+
+def _lift_readings(args) -> tuple[list[float], list[float]]:
+    for h, g in args.lift:
+        _checked(h, f"--lift {h:g}:{g:g}: lift", "rig.wheelbase_mm")
+        _checked(g, f"--lift {h:g}:{g:g}: reading", "rig.mass_g")
+    return [h for h, _ in args.lift], [g for _, g in args.lift]
+
+
+def _names(args, check: ReadingCheck) -> str:
+    if check.reading == "lift" and check.index is not None:
+        h, g = args.lift[check.index]
+        return f"--lift {h:g}:{g:g}"
+    return {"front": "--front", "total": "--total", "level": "--level-front", "lift": "--lift",
+            "axle": "--axle-height", "wheelbase": "--wheelbase", "angle": "--angle"}[check.reading]
+
+
+def _judge(args, checks: list[ReadingCheck]) -> None:
+    """Refuse on the first refusal; print each warning as one line on stderr."""
+    for check in checks:
+        if check.refuse:
+            raise ArgumentRefused(f"{_names(args, check)}: {check.why}")
+    for check in checks:
+        print(f"slopetune measure {args.kind}: warning: {_names(args, check)}: {check.why}", file=sys.stderr)
+
+
+def _fixed(key: str, value: float) -> str:
+    return f"{value:.{DIGITS[key]}f}"
 
 
 def run(args) -> int:
     from ..setup_writer import set_keys
 
+    source = _Source(args)
     if args.kind == "bias":
-        total = _positive("--total", _from_file(args, args.total, "rig.mass_g", "--total"))
-        front = _positive("--front", args.front)
-        if front >= total:
-            raise SetupError(f"--front {front:g}: must be below the total weight {total:g} g", "command line")
-        value = _result("rig.front_bias_pct", float(front_bias_pct(front, total)), "--front")
-        key, text = "rig.front_bias_pct", f"front bias {value:.2f} % ({front:g} g of {total:g} g on the front axle)"
+        total = _checked(source.value(args.total, "--total", "rig.mass_g", "the total weight"), "--total", "rig.mass_g")
+        front = _checked(args.front, "--front", "rig.mass_g")
+        _judge(args, bias_checks(front, total))
+        key = "rig.front_bias_pct"
+        value = round(float(front_bias_pct(front, total)), DIGITS[key])
+        text = f"front bias {_fixed(key, value)} % ({front:g} g of {total:g} g on the front axle)"
     elif args.kind == "cg-height":
-        total = _positive("--total", _from_file(args, args.total, "rig.mass_g", "--total"))
-        wb = _positive("--wheelbase", _from_file(args, args.wheelbase, "rig.wheelbase_mm", "--wheelbase"),
-                       "rig.wheelbase_mm")
-        if args.axle_height is None:
-            axle = _from_file(args, None, "rig.tire_dia_front_mm", "--axle-height") / 2.0
-        else:
-            axle = _positive("--axle-height", args.axle_height, "rig.tire_dia_front_mm")
-        level = _positive("--level-front", args.level_front)
-        lifts = [(_positive("--lift height", h, "rig.wheelbase_mm"), _positive("--lift reading", g))
-                 for h, g in args.lift]
-        try:
-            value = cg_height_from_lift_mm(total, wb, axle, level, [h for h, _ in lifts], [g for _, g in lifts])
-        except ValueError as exc:
-            raise SetupError(f"--lift: {exc}", "command line") from None
-        if not (math.isfinite(value) and value > 0):
-            shown = f"{value:.1f} mm" if math.isfinite(value) else "no finite value"
-            raise SetupError(f"--lift: readings give a CG height of {shown}; check the readings", "command line")
-        value = _result("rig.cg_height_mm", value, "--lift")
+        total = _checked(source.value(args.total, "--total", "rig.mass_g", "the total weight"), "--total", "rig.mass_g")
+        wb = _checked(source.value(args.wheelbase, "--wheelbase", "rig.wheelbase_mm", "the wheelbase"),
+                      "--wheelbase", "rig.wheelbase_mm")
+        axle = _checked(source.value(args.axle_height, "--axle-height", "axle", "the axle height (mean tyre radius)"),
+                        "--axle-height", "rig.wheelbase_mm")
+        level = _checked(args.level_front, "--level-front", "rig.mass_g")
+        lifts, readings = _lift_readings(args)
+        _judge(args, lift_checks(total, wb, axle, level, lifts, readings))
         key = "rig.cg_height_mm"
-        text = f"CG height {value:.1f} mm (ISO 10392 axle lift, {len(lifts)} lift{'s' if len(lifts) > 1 else ''})"
+        value = round(cg_height_from_lift_mm(total, wb, axle, level, lifts, readings), DIGITS[key])
+        _checked(value, "--lift: the readings give a CG height of", key)
+        n = len(lifts)
+        text = f"CG height {_fixed(key, value)} mm (ISO 10392 axle lift, {n} lift{'s' if n > 1 else ''})"
     else:
-        angle = _finite("--angle", args.angle)
-        if not 0 < angle < 80:
-            raise SetupError(f"--angle {angle:g}: must be above 0 and below 80 degrees", "command line")
-        value = _result("grip.mu_static", float(mu_from_slide_angle(angle)), "--angle")
-        key = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}[args.axle]
-        text = f"static mu {value:.3f} (tan {angle:g} deg)"
+        _judge(args, slide_angle_checks(args.angle))
+        key = MU_KEYS[args.axle]
+        value = round(float(mu_from_slide_angle(args.angle)), DIGITS["grip.mu_static"])
+        text = f"static mu {_fixed('grip.mu_static', value)} (tan {args.angle:g} deg)"
+        setup = source.setup()
+        problem = setup is not None and check_value(setup, key, value)
+        if problem:
+            _fs, fk, _rs, rk = setup.grip.axle_mu()
+            kinetic = {"both": setup.grip.mu_kinetic, "front": fk, "rear": rk}[args.axle]
+            if value < kinetic:
+                problem = (f"below the kinetic mu {kinetic:g} there (static grip is never below kinetic: "
+                           "check the angle, or measure kinetic mu again)")
+            raise ArgumentRefused(f"--angle {args.angle:g}: gives {key.split('.')[-1]} {value:g}, "
+                                  f"which {source.path} refuses: {problem}")
     print(text)
+    if source.used:
+        print(f"  ({', '.join(source.used)} from {source.path})")
+        setup = source.setup()
+        if args.kind in ("bias", "cg-height") and setup.rig.ballast and args.total is None:
+            n = len(setup.rig.ballast)
+            print(f"slopetune measure {args.kind}: warning: {source.path} adds {n} ballast item"
+                  f"{'s' if n > 1 else ''} on top of rig.mass_g: weigh the rig without them", file=sys.stderr)
     if args.write:
-        set_keys(args.write, {key: round(value, 4)})  # a SaveError is one line from main()
-        print(f"wrote {key} = {round(value, 4)} to {args.write}")
+        try:
+            set_keys(args.write, {key: value})  # a SaveError is one line from main()
+        except SetupError as exc:
+            raise ArgumentRefused(f"{key} = {value:g} not written: {exc.reason}") from None
+        print(f"wrote {key} = {value:g} to {args.write}")
     return 0

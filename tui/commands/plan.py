@@ -338,7 +338,7 @@ def plan_dict(p: Plan) -> dict:
 def register(sub) -> None:
     p = sub.add_parser("plan", help="what to change (ballast, CG, overdrive, mu) to reach a target angle",
                        description=HELP, formatter_class=argparse.RawDescriptionHelpFormatter)
-    p.add_argument("file", help="setup file (TOML, format 1)")
+    p.add_argument("file", metavar="FILE", help="setup file (TOML, format 1)")
     p.add_argument("--target", required=True, metavar="ANGLE>=DEG", help="e.g. 'handover>=12' or balance:max=15 [deg]")
     p.add_argument("--lever", required=True, metavar="LEVER", help="e.g. ballast:x=300,z=40 (see above)")
     p.add_argument("--json", action="store_true", help="one JSON object on stdout")

@@ -11,6 +11,7 @@ import numpy as np
 from slopetune.engine import SetupError, analyse, load_setup
 
 from ..status_words import status_view
+from ._args import number
 from ..units import Units
 
 HELP = """\
@@ -30,12 +31,12 @@ MAX_ROWS = 100_000
 def register(sub) -> None:
     p = sub.add_parser("report", help="loads, traction and named angles of one setup", description=HELP,
                        formatter_class=__import__("argparse").RawDescriptionHelpFormatter)
-    p.add_argument("file", help="setup file (TOML, format 1)")
+    p.add_argument("file", metavar="FILE", help="setup file (TOML, format 1)")
     p.add_argument("--json", action="store_true", help="one JSON object on stdout")
-    p.add_argument("--from", dest="start", type=float, default=0.0, metavar="DEG", help="first slope [deg] (0)")
-    p.add_argument("--to", dest="stop", type=float, default=90.0, metavar="DEG", help="last slope, inclusive [deg] (90)")
-    p.add_argument("--step", type=float, default=1.0, metavar="DEG", help="slope step [deg] (1)")
-    p.add_argument("--accel", type=float, default=None, metavar="G",
+    p.add_argument("--from", dest="start", type=number, default=0.0, metavar="DEG", help="first slope [deg] (0)")
+    p.add_argument("--to", dest="stop", type=number, default=90.0, metavar="DEG", help="last slope, inclusive [deg] (90)")
+    p.add_argument("--step", type=number, default=1.0, metavar="DEG", help="slope step [deg] (1)")
+    p.add_argument("--accel", type=number, default=None, metavar="G",
                    help="throttle acceleration along the slope [g] (the file's terrain.accel_g)")
     p.add_argument("--load", choices=("climb", "none"), default=None,
                    help="climb: tyres carry a steady climb; none: coasting/creeping (the file's terrain.load)")

@@ -16,6 +16,7 @@ from slopetune.engine.course_walk import (
 )
 from slopetune.engine.setup_file import find_line
 
+from ._args import number
 from .report import table_cell as _fmt
 
 HELP = """\
@@ -45,11 +46,11 @@ TABLE_ROWS = 40  # about this many regular rows, plus one per event
 def register(sub) -> None:
     p = sub.add_parser("walk", help="walk the rig over a course (--course FILE or the setup's [course])",
                        description=HELP, formatter_class=argparse.RawDescriptionHelpFormatter)
-    p.add_argument("file", help="setup file (TOML, format 1)")
+    p.add_argument("file", metavar="FILE", help="setup file (TOML, format 1)")
     p.add_argument("--course", metavar="COURSE", help="course file: schema = 1 and [course] only "
                                                       "(default: the setup's own [course])")
     p.add_argument("--json", action="store_true", help="one JSON object on stdout")
-    p.add_argument("--step", type=float, default=DEFAULT_STEP_MM, metavar="MM",
+    p.add_argument("--step", type=number, default=DEFAULT_STEP_MM, metavar="MM",
                    help=f"distance between positions [mm] ({DEFAULT_STEP_MM:g})")
     p.set_defaults(func=run)
 

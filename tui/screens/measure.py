@@ -18,7 +18,10 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Static
 
 from slopetune.engine import Setup, check_value
-from slopetune.engine.measure import cg_height_from_lift_mm, front_bias_pct, mu_from_slide_angle
+from slopetune.engine.measure import (
+    DIGITS as MEASURE_DIGITS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
+    mu_from_slide_angle, slide_angle_checks,
+)
 from slopetune.engine.setup_model import cross_field_problems, rule_for
 
 # Words from files and setups may hold brackets: never read them as markup.
@@ -36,8 +39,16 @@ NOTES = {
     "m-slide": "board angle at the first slide",
 }
 
-# Rounded to what a kitchen scale and a protractor resolve, so the file gets tidy numbers.
-DIGITS = {"rig.front_bias_pct": 1, "rig.cg_height_mm": 1, "grip.mu_static": 2}
+# Rounded to what a kitchen scale and a protractor resolve, as the command line does.
+DIGITS = {key: MEASURE_DIGITS[key] for key in ("rig.front_bias_pct", "rig.cg_height_mm", "grip.mu_static")}
+
+# The field and its label for a reading's plausibility check (engine.measure.ReadingCheck.reading).
+CHECK_FIELDS = {"front": ("m-front", "Front axle reading"), "total": ("m-total", "Total weight"),
+                "level": ("m-level", "Front reading, level"), "lift": ("m-lifts", "Lifts"),
+                "axle": ("m-axle", "Axle height"), "wheelbase": ("m-wheelbase", "Wheelbase"),
+                "angle": ("m-slide", "Slide angle")}
+
+LIFT_HOW = "Before lifting: a driveshaft out (wheels roll freely), suspension locked."
 
 _PAIR_SPLIT = re.compile(r"[,;]\s*|\s+(?=\S+\s*:)")
 
@@ -125,6 +136,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
 
     def _result(self, key: str, label: str) -> ComposeResult:
         stem = key.split(".")[1]
+        yield Plain("", id=f"{stem}-check", classes="m-check")
         with Horizontal(classes="m-row"):
             yield Plain("", id=f"{stem}-result", classes="m-result")
             yield Button(label, id=f"{stem}-apply", compact=True, classes="m-apply", disabled=True)
@@ -151,6 +163,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
                 yield from self._result("rig.front_bias_pct", "Apply bias")
                 yield Plain("CG height, ISO 10392 axle lift: raise the rear, read the front",
                              classes="m-heading")
+                yield Plain(LIFT_HOW, classes="m-note")
                 yield from self._field("m-wheelbase", "Wheelbase", _fmt(rig.wheelbase_mm), "mm")
                 yield from self._field("m-axle", "Axle height", _fmt(round(axle_mm, 1)), "mm")
                 yield from self._field("m-level", "Front reading, level", f"{front_g:.1f}", "g")
@@ -173,10 +186,12 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     def _text(self, field_id: str) -> str:
         return self.query_one(f"#{field_id}", Input).value
 
-    def _say(self, field_id: str, why: str) -> None:
+    def _say(self, field_id: str, why: str, warn: bool = False) -> None:
+        """Show `why` beside the field (a refusal, or with `warn` a warning), or its note when fine."""
         note = self.query_one(f"#{field_id}-why", Static)
         note.update(why or NOTES.get(field_id, ""))
-        note.set_class(bool(why), "-bad")
+        note.set_class(bool(why) and not warn, "-bad")
+        note.set_class(bool(why) and warn, "-warn")
         self.query_one(f"#{field_id}", Input).set_class(bool(why), "-bad")
 
     def _number(self, field_id: str, key: Optional[str] = None, positive: bool = False) -> Optional[float]:
@@ -194,6 +209,29 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
             return None
         self._say(field_id, "")
         return value
+
+    def _refused(self, key: str, checks: list[ReadingCheck], pairs=None) -> bool:
+        """Say the first problem on the section's check line, naming the reading; True if refused.
+
+        The field gets a short mark beside it (the line there is too narrow for the reason).
+        """
+        ordered = sorted(checks, key=lambda c: not c.refuse)
+        line = self.query_one(f"#{key.split('.')[1]}-check", Static)
+        if not ordered:
+            line.update("")
+            line.set_class(False, "-bad", "-warn")
+            line.display = False
+            return False
+        check = ordered[0]
+        field, label = CHECK_FIELDS[check.reading]
+        if check.reading == "lift" and check.index is not None and pairs is not None:
+            label = f"Lift pair {check.index + 1} ({pairs[0][check.index]:g}:{pairs[1][check.index]:g})"
+        self._say(field, "looks wrong, see below" if check.refuse else "see below", warn=not check.refuse)
+        line.update(f"{label}: {check.why}" if check.refuse else f"Check {label[0].lower()}{label[1:]}: {check.why}")
+        line.set_class(check.refuse, "-bad")
+        line.set_class(not check.refuse, "-warn")
+        line.display = True
+        return check.refuse
 
     def _show(self, key: str, value: Optional[float], line: str) -> None:
         """Record a result (None: not usable), write its line, enable its Apply button."""
@@ -218,6 +256,9 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     def _front_bias(self, total: Optional[float]) -> None:
         front = self._number("m-front", positive=True)
         key = "rig.front_bias_pct"
+        checks = bias_checks(front, total) if front is not None and total is not None else []
+        if self._refused(key, checks):
+            front = None
         if total is None or front is None:
             self._show(key, None, "front bias: needs the total weight and the front reading")
             return
@@ -229,9 +270,6 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         wheelbase = self._number("m-wheelbase", positive=True)
         axle = self._number("m-axle", positive=True)
         level = self._number("m-level", positive=True)
-        if level is not None and total is not None and level >= total:
-            self._say("m-level", "must be below the total weight")
-            level = None
         pairs = None
         if not self._text("m-lifts").strip():
             self._say("m-lifts", "")
@@ -247,14 +285,15 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
                 self._say("m-lifts", str(exc))
                 pairs = None
         if None in (total, wheelbase, axle, level) or pairs is None:
+            self._refused(key, [])
             missing = "lift:reading pairs" if pairs is None else "the fields above"
             self._show(key, None, f"CG height: needs {missing}")
             return
-        try:
-            height = cg_height_from_lift_mm(total, wheelbase, axle, level, *pairs)
-        except (ValueError, ZeroDivisionError, FloatingPointError) as exc:
-            self._show(key, None, f"CG height: {exc}")
+        checks = lift_checks(total, wheelbase, axle, level, *pairs)
+        if self._refused(key, checks, pairs):
+            self._show(key, None, "CG height: a reading looks wrong (see above)")
             return
+        height = cg_height_from_lift_mm(total, wheelbase, axle, level, *pairs)
         if not math.isfinite(height):
             self._show(key, None, "CG height: the readings give no finite height")
             return
@@ -265,8 +304,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     def _mu(self) -> None:
         key = "grip.mu_static"
         angle = self._number("m-slide")
-        if angle is not None and not 0 < angle < 90:
-            self._say("m-slide", "must be above 0 and below 90")
+        if self._refused(key, slide_angle_checks(angle) if angle is not None else []):
             angle = None
         if angle is None:
             self._show(key, None, f"{self._words['mu']} static: needs the slide angle")
