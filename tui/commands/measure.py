@@ -20,7 +20,7 @@ from slopetune.engine.setup_model import rule_for
 
 from ._args import ArgumentRefused, number
 
-KINDS = ("bias", "cg-height", "mu")
+KINDS = ("bias", "cg-height", "mu", "slip", "slip-test")
 
 HELP = """\
 Turn bench measurements into setup values. --from FILE takes the total weight, wheelbase and
@@ -32,6 +32,8 @@ axle height a reading needs from a setup file; --write FILE stores the result in
              read the front scale each time: h = r + L (Wf1 - Wf0) / (W tan(asin(H/L)))
              The wheels must roll freely (driveline out) and the suspension be locked.
   mu         tilt board, wheels blocked, raise until the rig slides: mu_s = tan(angle)
+  slip-test  slip stiffness c of one axle: one driveshaft out, turns counted on a board
+  slip       ramp test: the range of c that fits the handover seen on a board (a check)
 
 Readings that cannot be right are refused, naming the reading; suspicious ones are warned about.
 Units: grams, millimetres, degrees. Keep hands clear of the driveline while lifting.
@@ -97,6 +99,10 @@ def register(sub) -> None:
 
     for q in (b, c, m):
         _common(q)
+
+    from .measure_slip import register_kinds  # the slip stiffness: ramp test and slip test
+
+    register_kinds(kinds, _common)
 
 
 class _Source:

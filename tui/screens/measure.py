@@ -173,6 +173,10 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
                              classes="m-heading")
                 yield from self._field("m-slide", "Slide angle", f"{slide_deg:.1f}", "deg")
                 yield from self._result("grip.mu_static", f"Apply {mu_word}")
+                if hasattr(self.setup.grip, "slip_stiffness"):  # the slip model's setups
+                    from .measure_slip import SlipStiffnessForm
+
+                    yield SlipStiffnessForm(self.setup)
             yield Plain(KEYS, id="measure-keys")
 
     def on_mount(self) -> None:
