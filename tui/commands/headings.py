@@ -13,6 +13,7 @@ from slopetune.engine import SetupError, load_setup
 from ..heading_words import (CAUTION, LIMIT_SHORT, heading_label, heading_text, here_line, light_wheel_line,
                              margins_line, summary_lines)
 from ..units import Units
+from ._args import number
 
 HELP = """\
 Tip, first wheel lift and hold angle of one setup at every heading across a plane face.
@@ -35,9 +36,9 @@ the best line. Steady travel (no throttle punch).
 def register(sub) -> None:
     p = sub.add_parser("headings", help="tip, wheel lift and hold angle at every heading", description=HELP,
                        formatter_class=argparse.RawDescriptionHelpFormatter)
-    p.add_argument("file", help="setup file (TOML, format 1)")
+    p.add_argument("file", metavar="FILE", help="setup file (TOML, format 1)")
     p.add_argument("--json", action="store_true", help="one JSON object on stdout")
-    p.add_argument("--step", type=float, default=5.0, metavar="DEG", help="heading step [deg] (5)")
+    p.add_argument("--step", type=number, default=5.0, metavar="DEG", help="heading step [deg] (5)")
     p.set_defaults(func=run)
 
 
