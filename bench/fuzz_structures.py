@@ -313,8 +313,9 @@ def check_cli_numbers(argv) -> None:
     assert not re.search(r"\binf\b|\bnan\b", out.getvalue()), f"inf/nan printed: {out.getvalue()[:200]!r}"
     assert not re.search(r"\d{25}", text), "an absurdly long number printed"
     if code == 2 and argv[0] != "plan":
-        lines = [line for line in err.getvalue().splitlines() if line.startswith("slopetune: ")]
-        assert lines, err.getvalue()
+        # "slopetune: ..." or, naming the command whose argument it is, "slopetune measure bias: ..."
+        lines = [line for line in err.getvalue().splitlines() if re.match(r"slopetune( [a-z-]+)*: ", line)]
+        assert len(lines) == 1 and err.getvalue().count("\n") == 1, err.getvalue()
 
 
 # ---------------------------------------------------------------------------- special files, sizes
