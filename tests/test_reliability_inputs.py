@@ -306,3 +306,31 @@ def test_measure_refuses_absurd_readings(capsys, argv):
 def test_measure_still_takes_a_sane_reading(capsys):
     code, out, _ = _run(["measure", "bias", "--front", "1300", "--total", "2000"], capsys)
     assert code == 0 and "65.0 %" in out  # 1300 / 2000 = 65 % (hand-worked), shown as stored (0.1 %)
+
+
+def test_the_tuner_draws_file_text_escaped(tmp_path):
+    """Title line and form rows of a setup whose name and notes hold ESC, BEL, C1 and RLO (ECMA-48,
+    UAX #9): every drawn line is free of them, and the spelled-out form is there to read."""
+    import asyncio
+
+    from slopetune.tui.app import SlopeTuneApp
+
+    path = tmp_path / "evil.toml"
+    path.write_text(STOCK.replace('name = "', 'name = "\\u001b]2;PWNED\\u0007\\u009b\\u202e', 1)
+                    .replace('notes = "', 'notes = "\\u001b[2J', 1), encoding="utf-8")
+
+    async def go():
+        app = SlopeTuneApp(load_setup(path))
+        async with app.run_test(size=(100, 40)) as pilot:
+            await pilot.pause()
+            app.form.focus_key("name")
+            await pilot.pause()
+            title = app.title_bar.render().plain
+            form = [app.form.render_line(y).text for y in range(app.form.size.height)]
+            return title, form
+
+    title, form = asyncio.run(go())
+    shown = title + "\n".join(form)
+    assert not re.search("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]", shown)
+    assert "\\x1b]2;PWNED" in title
+    assert any("\\x1b[2J" in line for line in form)
