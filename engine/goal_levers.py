@@ -20,7 +20,6 @@ from typing import ClassVar, Optional, Union
 
 from .analysis import setup_overdrive
 from .setup_model import FIELDS, BallastItem, Driveline, Setup, cross_field_problems, rule_for
-from .goal_targets import LeverError  # noqa: F401 - levers raise it through goal_seek.plan
 
 def _climb_accel_g(setup: Setup) -> float:
     """The throttle acceleration `analyse` uses for this setup's angles. [g]"""

@@ -29,6 +29,7 @@ from .setup_model import (
     FIELDS, LOAD_MODES, SCHEMA_VERSION, BallastItem, Course, Driveline, Grip, Rig, Setup, Terrain,
     cross_field_problems, rule_for,
 )
+from .safe_text import one_line  # the one escaping rule for every message
 from .toml_scan import ScanProblem, line_index, scan
 
 MAX_FILE_BYTES = 1 << 20
@@ -52,9 +53,6 @@ SECTION_KEYS = {
     "course": ("name", "points_mm", "belly_clearance_mm"),
 }
 BALLAST_KEYS = ("name", "mass_g", "x_mm", "z_mm")
-
-
-from .safe_text import one_line  # noqa: E402 - the one escaping rule for every message
 
 
 class SetupError(ValueError):
