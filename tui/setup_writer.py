@@ -60,7 +60,7 @@ class LinkToNowhere(SaveNeedsConfirmation):
     confirm = "Create it"
 
 
-ELSEWHERE = "save under another name (tuner: a) or copy the file and write to the copy"
+ELSEWHERE = "save under another name (tuner: a; command line: write to a copy)"
 
 
 def _tidy(value):
@@ -282,11 +282,11 @@ def _refuse_replacing(path: Path, st: os.stat_result) -> None:
         read_only_mount = False
     # on a read-only mount the write itself fails and says so (EROFS); here: the file's own protection
     if not read_only_mount and not st.st_mode & 0o222:
-        raise SaveError(f"{path}: the file is read-only; not saved (nothing lost). To keep the change, "
-                        f"{ELSEWHERE}, or make it writable (chmod u+w)")
+        raise SaveError(f"{path}: read-only file, not saved (nothing lost); {ELSEWHERE}, or make it "
+                        "writable (chmod u+w)")
     if not read_only_mount and not os.access(path, os.W_OK):
-        raise SaveError(f"{path}: you may not write this file (owner uid {st.st_uid}); not saved (nothing lost). "
-                        f"To keep the change, {ELSEWHERE}")
+        raise SaveError(f"{path}: you may not write this file (owner uid {st.st_uid}), not saved (nothing lost); "
+                        f"{ELSEWHERE}")
     euid = os.geteuid() if hasattr(os, "geteuid") else st.st_uid
     if euid not in (0, st.st_uid):
         raise SaveError(f"{path}: belongs to another user (uid {st.st_uid}); saving would make it yours, so "
