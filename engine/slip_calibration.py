@@ -190,54 +190,89 @@ def stiffness_range(handover_of: Callable[[float], tuple[Optional[float], Option
             cache[c] = handover_of(c)
         return cache[c]
 
-    def fits(c: float) -> bool:
+    def late(c: float) -> float:  # the handover, +inf where the rig never scrubs
         h = at(c)[0]
-        if reading_deg is None:
-            return h is None
-        return h is not None and abs(h - reading_deg) <= tolerance_deg + 1e-9
+        return math.inf if h is None else h
 
-    start = floor * 1.0005
-    grid = [*np.geomspace(start, STIFFNESS_TOP, GRID_POINTS).tolist(), math.inf]
-    ok = [fits(c) for c in grid]
-    rigid_h, max_grade = at(math.inf)
-    finite = [at(c)[0] for c in grid if at(c)[0] is not None]
-    latest = max(finite) if finite else None
-    grades = [at(c)[1] for c in grid if at(c)[1] is not None]
-    top_grade = max(grades) if grades else max_grade
-    if not any(ok):
-        return StiffnessRange(False, None, None, None, _no_fit(reading_deg, tolerance_deg, rigid_h, latest,
-                                                                top_grade), rigid_h, latest, top_grade)
-    first = ok.index(True)
-    last = len(ok) - 1 - ok[::-1].index(True)
+    if reading_deg is None:  # "never scrubs": the handover must be beyond every slope the rig holds
+        early_enough = lambda c: True  # noqa: E731
+        late_enough = lambda c: math.isinf(late(c))  # noqa: E731
+    else:
+        early_enough = lambda c: late(c) <= reading_deg + tolerance_deg + 1e-9  # noqa: E731
+        late_enough = lambda c: late(c) >= reading_deg - tolerance_deg - 1e-9  # noqa: E731
 
-    def edge(inside: float, outside: float) -> float:
-        a, b = math.log(inside), math.log(outside)
+    def edge(true_at: float, false_at: float, test) -> float:
+        """Bisection in log c between a c where `test` holds and one where it does not."""
+        a, b = math.log(true_at), math.log(false_at)
         for _ in range(EDGE_STEPS):
             mid = 0.5 * (a + b)
-            if fits(math.exp(mid)):
+            if test(math.exp(mid)):
                 a = mid
             else:
                 b = mid
         return math.exp(a)
 
-    low = start if first == 0 else edge(grid[first], grid[first - 1])
-    high = math.inf if math.isinf(grid[last]) else edge(grid[last], grid[last + 1])
+    start = floor * 1.0005
+    grid = [*np.geomspace(start, STIFFNESS_TOP, GRID_POINTS).tolist(), math.inf]
+    early = [early_enough(c) for c in grid]  # false ... false true ... true (the handover falls with c)
+    lateok = [late_enough(c) for c in grid]  # true ... true false ... false
+    rigid_h, max_grade = at(math.inf)
+    finite = [at(c)[0] for c in grid if at(c)[0] is not None]
+    latest = max(finite) if finite else None
+    grades = [at(c)[1] for c in grid if at(c)[1] is not None]
+    top_grade = max(grades) if grades else max_grade
+
+    def none_fits(words: str) -> StiffnessRange:
+        return StiffnessRange(False, None, None, None, words, rigid_h, latest, top_grade)
+
+    clear_miss = reading_deg is not None and (
+        (rigid_h is not None and reading_deg + tolerance_deg < rigid_h)
+        or (top_grade is not None and reading_deg - tolerance_deg > top_grade))
+    if clear_miss or not any(early) or not any(lateok):
+        return none_fits(_no_fit(reading_deg, tolerance_deg, rigid_h, latest, top_grade))
+    i = early.index(True)
+    low = start if i == 0 else edge(grid[i], grid[i - 1], early_enough)
+    j = len(lateok) - 1 - lateok[::-1].index(True)
+    high = math.inf if math.isinf(grid[j]) else edge(grid[j], grid[j + 1], late_enough)
+    if low > high * (1 + 1e-9):  # the handover jumps over the reading's window
+        before = "never scrubbing" if math.isinf(late(high)) else f"{late(high):.1f} deg"
+        return none_fits(f"no c fits a handover of {reading_deg:g} deg (+-{tolerance_deg:g}): the handover "
+                         f"jumps from {before} (c up to {_num(high)}) to {late(low):.1f} deg (c from {_num(low)})")
     exact = None
-    if reading_deg is not None:
-        a, b = math.log(low), math.log(high if math.isfinite(high) else STIFFNESS_TOP)
-        ha, hb = at(math.exp(a))[0], at(math.exp(b))[0]
-        if ha is not None and hb is not None and hb <= reading_deg <= ha:
-            for _ in range(EDGE_STEPS):
-                mid = 0.5 * (a + b)
-                h = at(math.exp(mid))[0]
-                if h is not None and h > reading_deg:
-                    a = mid
-                else:
-                    b = mid
-            exact = math.exp(0.5 * (a + b))
+    if reading_deg is not None and math.isfinite(high):
+        above = lambda c: late(c) > reading_deg  # noqa: E731
+        if above(low) and not above(high):
+            exact = edge(low, high, above)
     return StiffnessRange(True, low, high, exact,
                           _fit_words(reading_deg, tolerance_deg, low, high, start, floor, rigid_h),
                           rigid_h, latest, top_grade)
+
+
+def one_stiffness(setup, c: float):
+    """`setup` with the slip stiffness `c` on both axles (per-axle overrides cleared)."""
+    for side in ("front", "rear"):
+        if getattr(setup.grip, f"{side}_slip_stiffness", None) is not None:
+            setup = setup.with_value(f"grip.{side}_slip_stiffness", None)
+    return setup.with_value("grip.slip_stiffness", c)
+
+
+def _finite_or_none(value) -> Optional[float]:
+    return float(value) if value is not None and math.isfinite(value) else None
+
+
+def handover_range(setup, reading_deg, tolerance_deg: float = 1.0) -> StiffnessRange:
+    """`stiffness_range` for a setup, with the analysis's own handover and max grade at each ``c``.
+
+    The floor is ``3 μ_s`` of the better-gripping axle (one ``c`` on both axles must exceed both).
+    """
+    from .analysis import analyse  # the named angles the report shows
+
+    def handover_of(c):
+        angles = analyse(one_stiffness(setup, c)).angles_deg
+        return _finite_or_none(angles.get("handover")), _finite_or_none(angles.get("max_grade"))
+
+    fs, _fk, rs, _rk = setup.grip.axle_mu()
+    return stiffness_range(handover_of, reading_deg, floor=3.0 * max(fs, rs), tolerance_deg=tolerance_deg)
 
 
 def _fit_words(reading, tol, low, high, start, floor, rigid_h) -> str:
@@ -270,4 +305,4 @@ def _no_fit(reading, tol, rigid_h, latest, max_grade) -> str:
             "after which the rig never scrubs")
 
 
-__all__ = ["SlipTestRuns", "StiffnessRange", "slip_test", "stiffness_range"]
+__all__ = ["SlipTestRuns", "StiffnessRange", "handover_range", "one_stiffness", "slip_test", "stiffness_range"]

@@ -164,3 +164,4 @@ def test_cli_slip_test_refuses_a_run_that_shows_no_slip(tmp_path, capsys):
     code = main(["measure", "slip-test", "--from", str(f), "--axle", "rear", "--run", "10:10:3200"])
     _, err = capsys.readouterr()
     assert code == 2 and err.count("\n") == 1 and "--run 10:10:3200" in err and "no slip shows" in err
+

@@ -11,9 +11,9 @@ import json
 import math
 import sys
 
-from slopetune.engine import analyse, load_setup
+from slopetune.engine import load_setup
 from slopetune.engine.ballast import combine_ballast
-from slopetune.engine.slip_calibration import slip_test, stiffness_range
+from slopetune.engine.slip_calibration import handover_range, slip_test
 
 from ._args import ArgumentRefused, number
 
@@ -96,29 +96,6 @@ def register_kinds(kinds, common) -> None:
 # ---------------------------------------------------------------- ramp test
 
 
-def _stiffness_setup(setup, c: float):
-    """The setup with one slip stiffness `c` on both axles (per-axle overrides cleared)."""
-    s = setup
-    for side in ("front", "rear"):
-        if getattr(s.grip, f"{side}_slip_stiffness", None) is not None:
-            s = s.with_value(f"grip.{side}_slip_stiffness", None)
-    return s.with_value("grip.slip_stiffness", c)
-
-
-def _angle(value):
-    return float(value) if value is not None and math.isfinite(value) else None
-
-
-def ramp_range(setup, reading_deg, tolerance_deg: float = 1.0):
-    """The engine's range of c for a ramp reading, with the handover from `analyse` at each c."""
-    def handover_of(c):
-        a = analyse(_stiffness_setup(setup, c))
-        return _angle(a.angles_deg.get("handover")), _angle(a.angles_deg.get("max_grade"))
-
-    fs, _fk, rs, _rk = setup.grip.axle_mu()
-    return stiffness_range(handover_of, reading_deg, floor=3.0 * max(fs, rs), tolerance_deg=tolerance_deg)
-
-
 def _c(x):
     return None if x is None or not math.isfinite(x) else round(float(x), 3)
 
@@ -131,7 +108,7 @@ def run_ramp(args) -> int:
     loaded = load_setup(args.file)
     if not hasattr(loaded.setup.grip, "slip_stiffness"):
         raise ArgumentRefused("this version's model has rigid tyres (no slip stiffness): nothing to fit")
-    found = ramp_range(loaded.setup, args.handover, args.tolerance)
+    found = handover_range(loaded.setup, args.handover, args.tolerance)
     closed = found.fits and math.isfinite(found.high) and found.exact is not None and found.low > 3.0 * max(
         loaded.setup.grip.axle_mu()[0::2]) * 1.001
     value = round(found.exact, STIFFNESS_DIGITS) if closed else None
@@ -144,7 +121,7 @@ def run_ramp(args) -> int:
         json.dump(out, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        print(found.words[0].upper() + found.words[1:] + ".")
+        print(found.words + ".")
         if value is not None:
             print(f"  the handover is exactly {args.handover:g} deg at c {value:g}")
         print("  (ramp test; unwind the driveline before each run; the slip test measures c per axle)")

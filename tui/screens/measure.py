@@ -48,7 +48,7 @@ CHECK_FIELDS = {"front": ("m-front", "Front axle reading"), "total": ("m-total",
                 "axle": ("m-axle", "Axle height"), "wheelbase": ("m-wheelbase", "Wheelbase"),
                 "angle": ("m-slide", "Slide angle")}
 
-LIFT_HOW = "Before lifting: a driveshaft out (wheels roll freely), suspension locked."
+LIFT_HOW = "Before lifting: driveshaft out (wheels roll freely), suspension locked."
 
 _PAIR_SPLIT = re.compile(r"[,;]\s*|\s+(?=\S+\s*:)")
 
@@ -154,7 +154,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
                 yield from self._field("m-total", "Total weight", _fmt(rig.mass_g), "g")
                 if rig.ballast:
                     yield Plain(
-                        f"Weigh it without the {len(rig.ballast)} ballast item(s) of the file: "
+                        f"Weigh it without the file's {len(rig.ballast)} ballast item(s): "
                         "they are added on top.",
                         classes="m-note",
                     )

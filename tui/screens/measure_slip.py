@@ -35,9 +35,9 @@ RAMP_STEPS = (
     "1. Unwind the driveline: roll back a little before every run.\n"
     "2. Set the board a few degrees steeper each run and creep up it.\n"
     "3. Note the angle where the overdriven tyres first slip: the handover\n"
-    "   (type none if they never slipped before the rig stopped climbing).\n"
-    "4. The range of c that fits it (+-1 deg) shows below. One reading can fit a\n"
-    "   range, or none; Apply only when the range is closed at both ends."
+    "   (none if they never slipped before the rig stopped climbing).\n"
+    "4. Below: the range of c that fits it (+-1 deg). One reading can fit\n"
+    "   a range, or none; Apply only when the range is closed at both ends."
 )
 
 _RUN_SPLIT = re.compile(r"[,;]\s*|\s+(?=\S+\s*:)")
@@ -209,16 +209,16 @@ class SlipStiffnessForm(Vertical):
 
     @work(thread=True, exclusive=True, group="ramp")
     def _work_ramp(self, reading, text: str) -> None:
-        from slopetune.tui.commands.measure_slip import ramp_range
+        from slopetune.engine.slip_calibration import handover_range
 
-        found = ramp_range(self.setup, reading)
+        found = handover_range(self.setup, reading)
         self.app.call_from_thread(self._ramp_done, found, text)
 
     def _ramp_done(self, found, text: str) -> None:
         if text != self._ramp_seen:
             return  # a newer reading is on its way
         check = self.query_one("#ramp-check", Static)
-        check.update(found.words[0].upper() + found.words[1:] + ".")
+        check.update(found.words + ".")
         check.set_class(not found.fits, "-bad")
         check.set_class(found.fits, "-warn")
         check.display = True
