@@ -17,7 +17,6 @@ from __future__ import annotations
 import gc
 import math
 import time
-from functools import lru_cache
 from pathlib import Path
 from typing import TYPE_CHECKING, ClassVar, Iterable, NamedTuple, Optional
 
@@ -36,6 +35,7 @@ from .app_files import FileActions
 from .app_fixes import FixActions
 from .app_screens import ScreenActions
 from .history import History
+from .slopes import SLOPE_SPANS, slope_grid  # noqa: F401 - SLOPE_SPANS: part of the app's names
 from .throttle import Throttle
 from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
@@ -52,9 +52,6 @@ MIN_COLUMNS, MIN_ROWS = 60, 20
 HELD_KEY_GAP_S = 0.06  # edits closer than this come from a held key (auto-repeat is 25-33 Hz)
 WORDS_EVERY_S = 1 / 12
 CHART_EVERY_S = 1 / 5
-# Slopes analysed and charted, 1 deg apart: the chart is 40-100 columns wide (80-200 braille dots),
-# and the named angles are found exactly by the engine, not read off this grid.
-SLOPE_SPANS = {False: (0.0, 90.0), True: (-90.0, 90.0)}
 WAIT_WORDS = "Working out the loads..."
 SHORT_CAUTION = "Static model: wind-up loads gears and motors; bench-test hands clear. F1: help"
 # grouped keys are drawn side by side: the slash keeps "Up/Dn" readable
@@ -65,17 +62,6 @@ ASCII_KEYS = {"up": "Up", "down": "/Dn", "left": "Lt", "right": "/Rt", "shift+le
 class Baseline(NamedTuple):
     setup: Setup
     label: str  # "pinned" or the file it came from
-
-
-@lru_cache(maxsize=None)
-def slope_grid(full_range: bool) -> np.ndarray:
-    """The slopes every analysis covers [deg] (numpy is imported here, after the first frame)."""
-    import numpy as np
-
-    lo, hi = SLOPE_SPANS[full_range]
-    grid = np.arange(lo, hi + 1.0, 1.0)
-    grid.flags.writeable = False  # shared by every analysis
-    return grid
 
 
 class TunerScreen(Screen):
@@ -143,8 +129,10 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
     ]
 
     def __init__(self, loaded: LoadedSetup, *, baseline: Optional[LoadedSetup] = None,
-                 ascii_only: bool = False, driver_class=None) -> None:
+                 ascii_only: bool = False, driver_class=None, prefetch=None) -> None:
+        """`prefetch`: a `tui.prefetch.Prefetch` working out the first screen in a child process."""
         super().__init__(driver_class=driver_class)
+        self.prefetch = prefetch
         self.loaded = loaded
         self.path: Optional[Path] = loaded.path
         self.setup = loaded.setup
@@ -188,8 +176,33 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         self.form.focus()
         self._note(self._first_note, "warning" if self.loaded.warnings else "info")
         self._show_title()
+        if self.prefetch is not None:
+            # a forked child is working out the first screen (tui/prefetch.py): show it the moment
+            # it arrives, and analyse here only after that frame
+            import asyncio
+
+            asyncio.get_running_loop().add_reader(self.prefetch.fd, self._prefetched)
+            return
         # the form first; numpy, the analysis and then plotext load after that frame
         self.call_after_refresh(self._first_analysis)
+
+    def _prefetched(self) -> None:
+        """The child's first screen is ready: show it, then analyse here after that frame."""
+        import asyncio
+
+        prefetch, self.prefetch = self.prefetch, None
+        asyncio.get_running_loop().remove_reader(prefetch.fd)
+        first = prefetch.result()
+        if first is not None and self.analysis is None and first.setup == self.setup and not self.full_range:
+            self.flag.show(first.view.level, first.view.flag)
+            self.status.view = first.view
+            self.chart.show(first.chart)
+            if self.resume_gc:
+                self.call_after_refresh(self._resume_gc)
+            # one more frame for the chart to reach the terminal, then numpy loads here
+            self.call_after_refresh(lambda: self.call_after_refresh(self._first_analysis))
+        else:
+            self.call_after_refresh(self._first_analysis)
 
     def _first_analysis(self) -> None:
         if self.analysis is None:  # no key has analysed the setup yet

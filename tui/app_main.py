@@ -97,10 +97,15 @@ def run_tuner(args) -> int:
     # collects once and turns it back on after its first chart (`SlopeTuneApp.resume_gc`).
     gc.disable()
     try:
+        from . import prefetch
+
+        # before Textual loads: a child works out the first screen on the other core meanwhile
+        first = prefetch.start(loaded.setup, baseline.setup if baseline else None, plain)
+
         from .app import SlopeTuneApp  # after the files are read: a bad file never starts Textual
 
         driver = _folding_driver(charset) if plain and sys.platform != "win32" else None
-        app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver)
+        app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver, prefetch=first)
         app.resume_gc = True
         app.run()
     finally:

@@ -1,0 +1,126 @@
+"""The first analysis, worked out in a forked process while the parent imports Textual.
+
+Start-up is two imports in a row on one core: Textual (to paint) and numpy (to analyse), about
+0.3 s and 0.1 s here, several times that on a Pi. A child forked before Textual loads imports
+numpy and the engine, analyses the setup, and sends back only what the first screen shows (the
+chart's data and the status words: plain tuples and strings, no numpy objects), so the chart
+follows the first frame within a few milliseconds instead of a numpy import later. The parent
+then analyses on its own, after that frame, for everything that follows.
+
+Where fork is missing (Windows) or fails, nothing is started and the tuner starts as before.
+"""
+
+from __future__ import annotations
+
+import os
+import pickle
+import sys
+from typing import NamedTuple, Optional
+
+
+class FirstScreen(NamedTuple):
+    """What the child sends back: the chart's data and the status words for the file's setup."""
+
+    setup: object  # the engine Setup it was worked out for (the parent checks it is still current)
+    chart: object  # widgets.load_chart.ChartData
+    view: object  # status_words.StatusView
+
+
+class Prefetch:
+    """A forked child working out the first screen; `fd` becomes readable when it is done."""
+
+    def __init__(self, pid: int, fd: int) -> None:
+        self.pid, self.fd = pid, fd
+
+    def result(self) -> Optional[FirstScreen]:
+        """Read the child's answer (blocks until it is written) and reap the child; None on failure."""
+        chunks = []
+        try:
+            while True:
+                chunk = os.read(self.fd, 1 << 16)
+                if not chunk:
+                    break
+                chunks.append(chunk)
+        except OSError:
+            chunks = []
+        finally:
+            self.close()
+        try:
+            answer = pickle.loads(b"".join(chunks)) if chunks else None
+        except Exception:  # noqa: BLE001 - a broken answer only means the parent works it out
+            return None
+        return answer if isinstance(answer, FirstScreen) else None
+
+    def close(self) -> None:
+        try:
+            os.close(self.fd)
+        except OSError:
+            pass
+        try:
+            os.waitpid(self.pid, 0)
+        except OSError:
+            pass
+
+
+def spare_core() -> bool:
+    """True when another core is idle enough for the child: on a busy or one-core machine the
+    child would only take time from the parent's first frame."""
+    cores = os.cpu_count() or 1
+    try:
+        load = os.getloadavg()[0]
+    except (AttributeError, OSError):
+        return cores >= 2
+    return cores >= 2 and load <= cores - 1
+
+
+def start(setup, baseline_setup, ascii_only: bool) -> Optional[Prefetch]:
+    """Fork a child that works out the first screen of `setup`; None where that cannot be done
+    or would not help (no fork, no spare core, `SLOPETUNE_PREFETCH=0`)."""
+    if not hasattr(os, "fork") or sys.platform == "win32":
+        return None
+    setting = os.environ.get("SLOPETUNE_PREFETCH", "auto")
+    if setting == "0" or (setting != "1" and not spare_core()):
+        return None
+    try:
+        read_fd, write_fd = os.pipe()
+    except OSError:
+        return None
+    try:
+        pid = os.fork()
+    except OSError:
+        os.close(read_fd)
+        os.close(write_fd)
+        return None
+    if pid == 0:  # the child: never returns, never touches the terminal
+        status = 1
+        try:
+            os.close(read_fd)
+            devnull = os.open(os.devnull, os.O_RDWR)
+            for fd in (0, 1, 2):
+                os.dup2(devnull, fd)
+            data = pickle.dumps(_first_screen(setup, baseline_setup, ascii_only), protocol=pickle.HIGHEST_PROTOCOL)
+            view = memoryview(data)
+            while view:
+                view = view[os.write(write_fd, view):]
+            status = 0
+        except BaseException:  # noqa: BLE001 - the parent falls back to its own analysis
+            pass
+        finally:
+            os._exit(status)
+    os.close(write_fd)
+    return Prefetch(pid, read_fd)
+
+
+def _first_screen(setup, baseline_setup, ascii_only: bool) -> FirstScreen:
+    from slopetune.engine import analyse
+
+    from .slopes import slope_grid
+    from .status_words import status_view
+    from .units import Units
+    from .widgets.load_chart import chart_data
+
+    units = Units(imperial=False, ascii_only=ascii_only)
+    slopes = slope_grid(False)
+    analysis = analyse(setup, slopes)
+    base = analyse(baseline_setup, slopes) if baseline_setup is not None else None
+    return FirstScreen(setup, chart_data(analysis, units, base), status_view(analysis, units, base))
