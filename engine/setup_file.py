@@ -114,10 +114,22 @@ class _Reader:
         raise SetupError(message, self.path, self.index.find(key), key)
 
     def unknown(self, key: str, shown: str) -> None:
-        if len(self.warnings) < MAX_WARNINGS:
-            self.warnings.append(f"{self.path}:{self.index.find(key) or '?'}: unknown key {shown} kept but not used")
-        else:
+        """Warn about an unknown key, with the known key of its table it most looks like."""
+        if len(self.warnings) >= MAX_WARNINGS:
             self.unwarned += 1
+            return
+        import difflib
+
+        parts = key.split(".")
+        known = (TOP_KEYS if len(parts) == 1 else BALLAST_KEYS if parts[:2] == ["rig", "ballast"]
+                 else SECTION_KEYS.get(parts[0], ()))
+        name = parts[-1]
+        # a unit suffix left off ("overdrive" for "overdrive_pct") first, then the nearest spelling
+        near = [k for k in known if k.startswith(name + "_")] or difflib.get_close_matches(name, list(known), 1, 0.75)
+        if near and len(parts) > 1 and parts[:2] != ["rig", "ballast"]:
+            near[0] = f"{parts[0]}.{near[0]}"
+        hint = f"; did you mean {near[0]}?" if near else ""
+        self.warnings.append(f"{self.path}:{self.index.find(key) or '?'}: unknown key {shown} kept but not used{hint}")
 
     def finish_warnings(self) -> list:
         extra = [f"{self.path}: {self.unwarned} more unknown keys kept but not used"] if self.unwarned else []

@@ -146,17 +146,17 @@ class FieldRule:
     help: str = ""
 
     def allowed(self) -> str:
-        """What is allowed, in words, for error messages."""
+        """What is allowed, in words, for error messages (numbers as people write them: 1,000,000)."""
         kind = "a whole number" if self.integer else "a number"
         if self.lo is not None and self.hi is not None:
             return (
-                f"{kind} {'>' if self.lo_open else '>='} {self.lo:g} and "
-                f"{'<' if self.hi_open else '<='} {self.hi:g}"
+                f"{kind} {'>' if self.lo_open else '>='} {self.lo:,.10g} and "
+                f"{'<' if self.hi_open else '<='} {self.hi:,.10g}"
             )
         if self.lo is not None:
-            return f"{kind} {'>' if self.lo_open else '>='} {self.lo:g}"
+            return f"{kind} {'>' if self.lo_open else '>='} {self.lo:,.10g}"
         if self.hi is not None:
-            return f"{kind} {'<' if self.hi_open else '<='} {self.hi:g}"
+            return f"{kind} {'<' if self.hi_open else '<='} {self.hi:,.10g}"
         return kind
 
     def problem(self, value) -> Optional[str]:

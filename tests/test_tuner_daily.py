@@ -269,3 +269,39 @@ def test_prefetch_child_sends_the_first_screen_the_parent_would_work_out(monkeyp
     assert first.chart == chart_data(a, units) and first.view == status_view(a, units)
     monkeypatch.setenv("SLOPETUNE_PREFETCH", "0")
     assert prefetch.start(setup, None, False) is None
+
+
+def test_every_file_warning_shows_with_did_you_mean(tmp_path):
+    text = DEMO.read_text(encoding="utf-8").replace("[driveline]", "[driveline]\noverdrive = 5", 1)
+    text = text.replace("[grip]", "[grip]\nmu_statc = 1.0", 1)
+    path = _copy(tmp_path, text)
+    loaded = load_setup(path)
+    assert len(loaded.warnings) == 2
+    assert "did you mean driveline.overdrive_pct?" in loaded.warnings[0]
+    assert "did you mean grip.mu_static?" in loaded.warnings[1]
+
+    async def go():
+        app = _app(path)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            words = screen_text(app)
+            assert "overdrive_pct?" in words and "mu_static?" in words  # both, not only the first
+
+    run(go())
+
+
+def test_limits_read_as_people_write_them_and_deltas_never_read_minus_zero():
+    from slopetune.engine import check_value
+    from slopetune.tui.units import Units
+
+    setup = load_setup(DEMO).setup
+    assert "< 1,000,000" in check_value(setup, "rig.mass_g", 5e6)
+    units = Units(imperial=False, ascii_only=True)
+    assert units.angle(-0.04, signed=True) == "+0.0 deg" and units.slope(-0.01) == "0 deg"
+
+
+def test_a_long_title_ends_in_an_ellipsis_not_mid_word():
+    from slopetune.tui.widgets.title_bar import _fit
+
+    assert _fit("Marmot 313 - front overdrive, brass knuckles", 30) == "Marmot 313 - front overdrive\u2026"
+    assert _fit("short", 30) == "short"

@@ -150,7 +150,7 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         # second, each with a last update that shows the final value; a slow link never queues frames.
         self.word_updates = Throttle(self, WORDS_EVERY_S, self._show_words)
         self.chart_updates = Throttle(self, CHART_EVERY_S, self._push_chart)
-        self._first_note = loaded.warnings[0] if loaded.warnings else SHORT_CAUTION
+        self._first_note = "\n".join(loaded.warnings) if loaded.warnings else SHORT_CAUTION  # every one
         self.resume_gc = False  # the starter paused the garbage collector for the first frame
         self.main_screen = TunerScreen(self.setup, self.units, self._title_words(),
                                        (self._first_note, "info"))

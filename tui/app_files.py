@@ -87,7 +87,7 @@ class FileActions:
             return
         self.loaded, self.path = loaded, loaded.path
         self.saved_setup = loaded.setup
-        self._replace_setup(loaded.setup, loaded.warnings[0] if loaded.warnings else f"Opened {path}")
+        self._replace_setup(loaded.setup, "\n".join(loaded.warnings) if loaded.warnings else f"Opened {path}")
 
     def _folders(self) -> list[Path]:
         out: list[Path] = []

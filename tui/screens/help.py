@@ -12,17 +12,24 @@ from textual.widgets import Static
 KEYS_CLOSE = "Up/Down, PgUp/PgDn: scroll   Esc or q: close"
 
 FORM_TEXT = (
-    "In the form: Up/Down move between fields; Left/Right step the value (with a modifier, a "
-    "coarse step). Type a number and press Enter to set it exactly; Esc cancels the typing. A value "
-    "that is out of range or not a number is refused with the reason beside the field, and the last "
-    "good value stays."
+    "In the form: Up/Down move between fields, PgUp/PgDn from section to section (Terrain, Rig, "
+    "Ballast, Driveline, Grip); Left/Right step the value (with Shift, or [ and ], a coarse step). "
+    "Type a number and press Enter to set it exactly; Enter on a field offers its value, which the "
+    "first key typed replaces (Right keeps it to edit); Esc cancels the typing. A value that is out "
+    "of range or not a number is refused with the reason beside the field, and the last good value "
+    "stays. The Rig section also shows the rig with its ballast (mass, front bias, CG height, CG "
+    "from the rear axle): every figure is worked out for that rig.\n"
+    "Ctrl+Z or z undoes the last change (steps, typed values, ballast, an accepted plan, a "
+    "measurement); Ctrl+Y or Z does it again. The title's UNSAVED follows.\n"
+    "When the flag is up, a Fix line under the status names the smallest change of each lever that "
+    "clears it (the planner's answers); f opens the planner with that target."
 )
 
 CHART_TEXT = (
     "The chart shows the normal force on the front axle and on the rear axle (grams-force, or "
     "ounces in imperial display) against the slope in degrees; nose up is positive. Marks: the "
-    "setup's slope, balance (front and rear carry the same), handover, and front lift (the front "
-    "axle carries nothing: past it the rig flips over backwards). A pinned baseline is drawn dimmed "
+    "setup's slope, B balance (front and rear carry the same), H handover, M max grade, and L front "
+    "lift (the front axle carries nothing: past it the rig flips over backwards). A pinned baseline is drawn dimmed "
     "behind the current curves."
 )
 
@@ -104,8 +111,8 @@ def binding_rows(screen: Screen) -> list[tuple[str, str]]:
         pairs = [(b.key, b) for b in Binding.make_bindings(getattr(screen.app, "BINDINGS", []))]
     rows: dict[tuple[str, str], list[str]] = {}
     for key, binding in pairs:
-        if not binding.description:
-            continue
+        if not binding.description or not binding.id:
+            continue  # the tuner's keys all have ids; the framework's own (Tab, Ctrl+C copy) do not
         keys = rows.setdefault((binding.action, binding.description), [])
         shown = binding.key_display or key_label(key)
         if shown not in keys:

@@ -45,8 +45,21 @@ class TitleBar(Widget):
         left = Text(no_wrap=True, overflow="crop")
         if marker:
             left.append(marker, self.get_component_rich_style("title-bar--unsaved"))
-        left.append(words)
+        left.append(_fit(words, room - len(marker), "..." if getattr(self.app, "ascii_only", False) else "\u2026"))
         left.truncate(room, overflow="crop", pad=True)
         left.append(" ")
         left.append_text(right)
         return left
+
+
+def _fit(words: str, room: int, ellipsis: str = "\u2026") -> str:
+    """`words` in `room` cells: cut at the last whole word, with an ellipsis to show the cut."""
+    if len(words) <= room:
+        return words
+    if room <= 1:
+        return words[:max(room, 0)]
+    cut = words[:max(room - len(ellipsis), 1)]
+    space = len(cut) if words[len(cut)] == " " else cut.rfind(" ")
+    if space >= room // 2:  # end after the last whole word, not mid-word
+        cut = cut[:space]
+    return cut.rstrip(" |,-") + ellipsis
