@@ -334,3 +334,23 @@ def test_the_tuner_draws_file_text_escaped(tmp_path):
     assert not re.search("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]", shown)
     assert "\\x1b]2;PWNED" in title
     assert any("\\x1b[2J" in line for line in form)
+
+
+def test_the_tuner_refuses_a_stage_that_leaves_the_range_and_keeps_running():
+    """Typing 1000 teeth on the front driven gear: 40/1000 - 1 = -96 % overdrive (hand-worked),
+    outside -50..100 %: the form says so, the setup keeps 38 teeth, the tuner runs on."""
+    import asyncio
+
+    from slopetune.tui.app import SlopeTuneApp
+
+    async def go():
+        app = SlopeTuneApp(load_setup(ROOT / "setups" / "marmot-overdrive.toml"))
+        async with app.run_test(size=(80, 24)) as pilot:
+            await pilot.pause()
+            assert app.form.focus_key("driveline.front_stages.0.1")
+            await pilot.press("enter", "1", "0", "0", "0", "enter")
+            await pilot.pause()
+            return app.is_running, app.setup.driveline.front_stages, app.form.error_for("driveline.front_stages.0.1")
+
+    running, stages, error = asyncio.run(go())
+    assert running and stages == ((13, 38),) and "overdrive of -96 %" in error
