@@ -305,3 +305,14 @@ def test_a_long_title_ends_in_an_ellipsis_not_mid_word():
 
     assert _fit("Marmot 313 - front overdrive, brass knuckles", 30) == "Marmot 313 - front overdrive\u2026"
     assert _fit("short", 30) == "short"
+
+
+def test_open_list_shows_setups_and_courses_not_other_toml_files(tmp_path):
+    from slopetune.tui.screens.open_file import scan_setup_files
+
+    (tmp_path / "pyproject.toml").write_text('[project]\nname = "x"\n', encoding="utf-8")
+    (tmp_path / "rig.toml").write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    (tmp_path / "broken.toml").write_text("schema = 1\n[rig\n", encoding="utf-8")  # a setup, broken: listed
+    (tmp_path / "course.toml").write_text("schema = 1\n[course]\nname = 'x'\n", encoding="utf-8")
+    entries, _problems = scan_setup_files([tmp_path])
+    assert sorted(e.path.name for e in entries) == ["broken.toml", "course.toml", "rig.toml"]

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import dataclass
 from functools import partial
 from pathlib import Path
@@ -66,6 +67,22 @@ def _describe(path: Path) -> tuple[Optional[str], Optional[str]]:
     return (name or path.stem), None
 
 
+_SETUP_MARK = re.compile(r"^\s*(\[\s*(rig|course)\s*\]|schema\s*=)", re.MULTILINE)
+PEEK_BYTES = 64 * 1024
+
+
+def looks_like_setup(path: Path) -> bool:
+    """A `.toml` file worth listing: it has `schema =`, `[rig]` or `[course]` near its top (so
+    `pyproject.toml` and other programs' files stay out; a broken setup still shows, with its
+    problem)."""
+    try:
+        with open(path, "rb") as f:
+            head = f.read(PEEK_BYTES).decode("utf-8", "replace")
+    except OSError:
+        return False
+    return _SETUP_MARK.search(head) is not None
+
+
 def scan_setup_files(folders: list[Path]) -> tuple[list[SetupFileEntry], list[str]]:
     """The `.toml` files directly in `folders`, de-duplicated; setups that load first, by path.
 
@@ -89,7 +106,7 @@ def scan_setup_files(folders: list[Path]) -> tuple[list[SetupFileEntry], list[st
                 key = child.resolve()
             except OSError:
                 continue
-            if key not in seen:
+            if key not in seen and looks_like_setup(child):
                 seen.add(key)
                 found.append(child)
     entries = []
