@@ -185,7 +185,7 @@ def test_open_file_lists_and_picks(tmp_path):
         return count, text
 
     result, (count, text) = run_screen(OpenFileScreen([setups, here, setups]), script)
-    assert count == 5
+    assert count == 4  # binary.toml is not listed: not a setup
     assert "Alpha Marmot" in text and "broken.toml" in text and "line 2" in text
     assert result == setups / "a-rig.toml"  # second line: here/c-rig first
 
