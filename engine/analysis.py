@@ -1,29 +1,37 @@
-"""One call that analyses a setup over any array of slopes: loads, traction and named angles.
+"""One call that analyses a setup over any array of slopes: loads, tyre slip and named angles.
 
 The CLI, the tuner and the planner all go through `analyse`; no physics lives outside `engine/`.
 
-The named angles are exact. Every boundary between traction states is a zero of a function of
-the form ``p cos θ + q sin θ + c`` (normal forces and friction limits are all linear in
-``cos θ``, ``sin θ`` and 1), so the candidates are found in closed form by
-`slope_statics.solve_cos_sin` and the state is then checked between them.
+Named results are for a steady climb (``a_x = 0``), the rig's own figures; the file's throttle
+applies to the sweep rows and gives a second set of angles beside them (``angles_with_throttle_deg``).
+Named angles come from `slope_angles` (exact with a constant speed ratio, scanned and bisected to
+0.01° when the roll-out diameters change with load).
 
 References
 ----------
 .. [1] T. D. Gillespie, *Fundamentals of Vehicle Dynamics*, SAE, 1992, ch. 2.
+.. [2] H. B. Pacejka, *Tire and Vehicle Dynamics*, 3rd ed., 2012, sec. 3.2 (brush model).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import math
+from dataclasses import dataclass, field, replace
 from typing import Optional
 
 import numpy as np
 
 from . import slope_statics as st
 from .ballast import combine_ballast
-from .overdrive import OverdriveFigures, gear_overdrive_pct, overdrive_figures
+from .overdrive import (
+    SAME_SPEED_TOL, OverdriveFigures, gear_overdrive_pct, loaded_speed_ratio, overdrive_figures,
+    rolling_dia_under_load_mm,
+)
 from .setup_model import Setup
-from .traction import HOLDING, LIFTED, STATES, TractionState, required_force_g, traction_state
+from .slope_angles import named_climb_angles, saturation_weights, weight_only_handover_deg
+from .traction import (
+    FRONT, REAR, RIGID_STAND_IN, STATES, TractionState, required_force_g, slip_traction_state,
+)
 
 
 @dataclass(frozen=True)
@@ -49,10 +57,47 @@ def effective_rig(setup: Setup) -> EffectiveRig:
     return EffectiveRig(mass, r.wheelbase_mm, x, z, r.track_mm, r.tire_dia_front_mm, r.tire_dia_rear_mm)
 
 
-def setup_overdrive(setup: Setup) -> OverdriveFigures:
+def gear_pct(setup: Setup) -> float:
+    """Gear overdrive of the setup's driveline (stages or percentage). [%]"""
     d = setup.driveline
-    gear = gear_overdrive_pct(d.front_stages, d.rear_stages) if d.uses_stages else (d.overdrive_pct or 0.0)
-    return overdrive_figures(gear, setup.rig.tire_dia_front_mm, setup.rig.tire_dia_rear_mm)
+    return gear_overdrive_pct(d.front_stages, d.rear_stages) if d.uses_stages else (d.overdrive_pct or 0.0)
+
+
+def setup_overdrive(setup: Setup) -> OverdriveFigures:
+    """Overdrive figures at the level static load, from the roll-out diameters when the file has
+    them (they are the reference of the tyres' slip, MODEL section 5), else the tyre diameters."""
+    dia_f, dia_r = setup.rig.rolling_dia_mm()
+    return overdrive_figures(gear_pct(setup), dia_f, dia_r)
+
+
+class SpeedRatio:
+    """``K`` of a setup at any axle loads: gears and roll-out diameters under load (MODEL sec. 4)."""
+
+    def __init__(self, setup: Setup, level_front_g: float, level_rear_g: float):
+        r = setup.rig
+        self.gear_pct = gear_pct(setup)
+        self.dia_f, self.dia_r = r.rolling_dia_mm()
+        self.loss_f, self.loss_r = r.rolling_dia_loss_front_mm_per_100g, r.rolling_dia_loss_rear_mm_per_100g
+        self.free_f, self.free_r = r.tire_dia_front_mm, r.tire_dia_rear_mm
+        self.level_f, self.level_r = level_front_g, level_rear_g
+        self.constant = self.loss_f == 0 and self.loss_r == 0
+        self.level = float(loaded_speed_ratio(self.gear_pct, self.dia_f, self.dia_r))
+
+    def __call__(self, front_normal_g, rear_normal_g):
+        """``K`` at these axle loads [gf]; the shape of the loads. [-]"""
+        nf, nr = np.broadcast_arrays(np.asarray(front_normal_g, float), np.asarray(rear_normal_g, float))
+        if self.constant:
+            return np.full(nf.shape, self.level)
+        d_f = rolling_dia_under_load_mm(self.dia_f, self.loss_f, nf, self.level_f, self.free_f)
+        d_r = rolling_dia_under_load_mm(self.dia_r, self.loss_r, nr, self.level_r, self.free_r)
+        return loaded_speed_ratio(self.gear_pct, d_f, d_r)
+
+
+def speed_ratio_of(setup: Setup) -> SpeedRatio:
+    """The setup's `SpeedRatio`, with the level loads of its effective rig (ballast included)."""
+    rig = effective_rig(setup)
+    nf, nr = st.axle_loads_g(rig.mass_g, rig.wheelbase_mm, rig.cg_from_rear_mm, rig.cg_height_mm, 0.0)
+    return SpeedRatio(setup, float(nf), float(nr))
 
 
 @dataclass(frozen=True)
@@ -64,6 +109,7 @@ class Sweep:
     rear_normal_g: np.ndarray
     required_g: np.ndarray
     traction: TractionState
+    speed_ratio: np.ndarray = field(default=None)  # K at each slope [-]
 
     @property
     def lifted(self) -> list[Optional[str]]:
@@ -83,68 +129,111 @@ class Analysis:
     setup: Setup
     rig: EffectiveRig
     overdrive: OverdriveFigures
-    load: str  # "climb" or "none"
-    accel_g: float
-    angles_deg: dict  # name -> float or None
+    accel_g: float  # the file's throttle: applies to `sweep` and `angles_with_throttle_deg` [g]
+    angles_deg: dict  # steady climb (a_x = 0): name -> float or None
     max_grade_limit: str  # "slip" or "lift"
     sweep: Sweep
+    angles_with_throttle_deg: Optional[dict] = None  # same keys with the throttle; None at 0 g
+    throttle_max_grade_limit: Optional[str] = None
     _model: "_Model" = field(repr=False, compare=False, default=None)
 
     def at(self, slope_deg) -> Sweep:
-        """The same setup, load and acceleration evaluated at other slopes (cheap: no angles)."""
+        """The same setup and throttle evaluated at other slopes (cheap: no angles)."""
         return self._model.sweep(slope_deg)
+
+    def scrub_bands(self) -> dict:
+        """How far a scrub, once started, persists (MODEL section 5): see `scrub_band.scrub_bands`."""
+        from .scrub_band import scrub_bands
+
+        return scrub_bands(self._model.steady())
+
+    def stiffness_sensitivity(self) -> dict:
+        """Handover and max grade with half and double the slip stiffness and with rigid tyres:
+        {"softer": (c, angles), "stiffer": ..., "rigid": ...} (steady climb)."""
+        steady = self._model.steady()
+        out = {}
+        cf, cr = steady.stiffness
+        for label, scale in (("softer", 0.5), ("stiffer", 2.0), ("rigid", math.inf)):
+            if math.isinf(cf) and math.isinf(cr) and label != "rigid":
+                continue
+            c = (cf * scale, cr * scale)
+            if not math.isinf(scale) and min(c[0] - 3 * steady.mu_f[0], c[1] - 3 * steady.mu_r[0]) <= 0:
+                continue  # a brush tyre that soft cannot slide fully; not a tyre to compare with
+            angles = named_climb_angles(steady.with_stiffness(c))
+            out[label] = (c[0] if c[0] == c[1] else c, angles)
+        return out
 
 
 class _Model:
     """The setup reduced to numbers, evaluating loads and traction at any slopes."""
 
-    def __init__(self, rig: EffectiveRig, setup: Setup, overdriven, load: str, accel_g: float):
-        self.rig, self.overdriven = rig, overdriven
-        self.climb = load == "climb"
-        self.accel = accel_g if self.climb else 0.0
+    def __init__(self, rig: EffectiveRig, setup: Setup, accel_g: float, ratio: SpeedRatio,
+                 stiffness: Optional[tuple] = None):
+        self.rig, self.setup, self.accel, self.ratio = rig, setup, accel_g, ratio
         fs, fk, rs, rk = setup.grip.axle_mu()
         self.mu_f, self.mu_r = (fs, fk), (rs, rk)
         self.crr = setup.grip.rolling_resistance
+        self.stiffness = stiffness if stiffness is not None else setup.grip.axle_stiffness()
+        self.constant_ratio = ratio.constant
+
+    def steady(self) -> "_Model":
+        return self if self.accel == 0 else _Model(self.rig, self.setup, 0.0, self.ratio, self.stiffness)
+
+    def with_stiffness(self, stiffness) -> "_Model":
+        return _Model(self.rig, self.setup, self.accel, self.ratio, stiffness)
+
+    def stiffness_for_solve(self) -> tuple[float, float]:
+        cf, cr = self.stiffness
+        if math.isinf(cf) and math.isinf(cr):
+            return cf, cr
+        return (RIGID_STAND_IN if math.isinf(cf) else cf, RIGID_STAND_IN if math.isinf(cr) else cr)
+
+    def ratio_at_level(self) -> float:
+        return self.ratio.level
+
+    def fast_code(self) -> Optional[int]:
+        """FRONT or REAR: the overdriven axle on a climb (from K at the level load), or None."""
+        e = self.ratio.level - 1.0
+        if abs(e) <= SAME_SPEED_TOL:
+            return None
+        return FRONT if e > 0 else REAR
 
     def loads(self, slope_deg):
         r = self.rig
         return st.axle_loads_g(r.mass_g, r.wheelbase_mm, r.cg_from_rear_mm, r.cg_height_mm, slope_deg, self.accel)
 
     def required(self, slope_deg):
-        if not self.climb:
-            return np.zeros_like(np.asarray(slope_deg, dtype=float))
         return required_force_g(self.rig.mass_g, slope_deg, self.crr, self.accel)
+
+    def _solve(self, nf, nr, f_req):
+        cf, cr = self.stiffness
+        return slip_traction_state(nf, nr, f_req, self.mu_f, self.mu_r, cf, cr, self.ratio(nf, nr))
 
     def state(self, slope_deg) -> TractionState:
         nf, nr = self.loads(slope_deg)
-        return traction_state(nf, nr, self.required(slope_deg), self.mu_f, self.mu_r, self.overdriven)
+        return self._solve(nf, nr, self.required(slope_deg))
 
     def sweep(self, slope_deg) -> Sweep:
         slopes = np.asarray(slope_deg, dtype=float)
         nf, nr = self.loads(slopes)
         f_req = self.required(slopes)
-        return Sweep(slopes, nf, nr, f_req, traction_state(nf, nr, f_req, self.mu_f, self.mu_r, self.overdriven))
-
-    def fast_first_margin(self, slope_deg):
-        """``μ_s,fast N_fast − μ_s,slow N_slow − F_req``: negative where the fast axle slips first."""
-        nf, nr = self.loads(slope_deg)
-        f = self.required(slope_deg)
-        (msf, _), (msr, _) = self.mu_f, self.mu_r
-        if self.overdriven == "rear":
-            return msr * nr - msf * nf - f
-        return msf * nf - msr * nr - f
+        return Sweep(slopes, nf, nr, f_req, self._solve(nf, nr, f_req), self.ratio(nf, nr))
 
     def boundary_weights(self):
         """(α, β, γ) of every function ``α N_f + β N_r + γ F_req`` whose zeros can separate two
-        traction states: lift, which axle slips first, and each axle holding what the other leaves."""
+        traction states: lift, an axle's patch saturating, the other axle holding what a sliding
+        one leaves (kinetic), and the combined static grip."""
         (msf, mkf), (msr, mkr) = self.mu_f, self.mu_r
         out = [(1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (msf, -msr, -1.0), (-msf, msr, -1.0)]
         for s in (1.0, -1.0):
             out += [
-                (s * mkf, msr, -s), (-s * mkf, msr, -s),  # rear holds what the slipping front leaves
-                (msf, s * mkr, -s), (msf, -s * mkr, -s),  # front holds what the slipping rear leaves
-                (msf, msr, -s),  # no overdrive: both together
+                (s * mkf, msr, -s), (-s * mkf, msr, -s),  # rear holds what the sliding front leaves
+                (msf, s * mkr, -s), (msf, -s * mkr, -s),  # front holds what the sliding rear leaves
+                (msf, msr, -s),  # both together
             ]
+        cf, cr = self.stiffness
+        if not (math.isinf(cf) and math.isinf(cr)):
+            out += saturation_weights(self)
         return out
 
     def trig_coefficients(self):
@@ -156,67 +245,32 @@ class _Model:
         return np.column_stack([rows[:, 0] - c, rows[:, 1] - c, c])
 
 
-def _breakpoints(model: _Model, weights, lo_deg, hi_deg):
-    """`lo_deg`, `hi_deg` and every zero in between of the weighted functions, sorted."""
-    coef = np.asarray(weights, dtype=float) @ model.trig_coefficients()
-    pts = {lo_deg, hi_deg}
-    for p, q, c in coef:
-        pts.update(r for r in st.solve_cos_sin(p, q, c) if lo_deg < r < hi_deg)
-    return np.array(sorted(pts))
-
-
-def _first_failure(pred, pts):
-    """First angle of `pts` after which `pred` (array -> bool array) stops being true.
-
-    Returns (angle, sample) where `sample` is an angle just past it, or (None, None) when `pred`
-    holds up to the last point. `pred` is checked at the first point and between each pair.
-    """
-    mids = (pts[:-1] + pts[1:]) / 2.0
-    probe = np.concatenate(([pts[0]], mids))
-    ok = pred(probe)
-    if not ok[0]:
-        return float(pts[0]), float(pts[0])
-    bad = np.flatnonzero(~ok[1:])
-    if bad.size == 0:
-        return None, None
-    i = int(bad[0])
-    return float(pts[i]), float(mids[i])
-
-
-def _handover_deg(model: _Model) -> Optional[float]:
-    """Smallest climbing slope >= 0 where the overdriven axle is the first to slip.
-
-    Only where both axles are on the ground: past a lift nothing slips (the rig has tipped).
-    """
-    if model.overdriven is None:
-        return None
-    (msf, _), (msr, _) = model.mu_f, model.mu_r
-    w = (-msf, msr, -1.0) if model.overdriven == "rear" else (msf, -msr, -1.0)
-    pts = _breakpoints(model, [w, (1.0, 0.0, 0.0), (0.0, 1.0, 0.0)], 0.0, 90.0)
-
-    def not_handed_over(t):
-        nf, nr = model.loads(t)
-        return (model.fast_first_margin(t) >= 0) | (nf <= 0) | (nr <= 0)
-
-    angle, _ = _first_failure(not_handed_over, pts)
-    return angle
-
-
-def _max_grade(model: _Model) -> tuple[float, str]:
-    pts = _breakpoints(model, model.boundary_weights(), 0.0, 90.0)
-    angle, sample = _first_failure(lambda t: np.isin(model.state(t).state, HOLDING), pts)
-    if angle is None:
-        return 90.0, "lift"
-    code = int(model.state(np.array([sample])).state[0])
-    return angle, ("lift" if code == LIFTED else "slip")
-
-
 def _finite_or_none(x) -> Optional[float]:
     return float(x) if x is not None and np.isfinite(x) else None
 
 
-def analyse(setup: Setup, slopes_deg=None, *, accel_g: Optional[float] = None, load: Optional[str] = None) -> Analysis:
-    """Loads, traction state and named angles of `setup` over `slopes_deg`.
+def _named_angles(model: _Model) -> tuple[dict, str]:
+    rig = model.rig
+    a = model.accel
+    b, h, L = rig.cg_from_rear_mm, rig.cg_height_mm, rig.wheelbase_mm
+    climb = named_climb_angles(model)
+    angles = {
+        "balance": _finite_or_none(st.balance_angle_deg(L, b, h, a)),
+        "front_lift": _finite_or_none(st.front_lift_angle_deg(b, h, a)),
+        "rear_lift": _finite_or_none(st.rear_lift_angle_deg(L, b, h, a)),
+        "sidehill_roll": st.sidehill_roll_angle_deg(rig.track_mm, h),
+        # the first axle to slide sideways sets it (driveline unwound; MODEL section 2)
+        "sidehill_slide": st.sidehill_slide_angle_deg(min(model.mu_f[0], model.mu_r[0])),
+        "handover": climb["handover"],
+        "handover_weight_only": weight_only_handover_deg(model),
+        "max_grade": climb["max_grade"],
+    }
+    return angles, climb["max_grade_limit"]
+
+
+def analyse(setup: Setup, slopes_deg=None, *, accel_g: Optional[float] = None,
+            stiffness: Optional[tuple] = None) -> Analysis:
+    """Loads, tyre slip, traction state and named angles of `setup` over `slopes_deg`.
 
     Parameters
     ----------
@@ -225,44 +279,33 @@ def analyse(setup: Setup, slopes_deg=None, *, accel_g: Optional[float] = None, l
     slopes_deg : array_like, optional
         Slopes to sweep, nose up positive. [deg] Default 0 to 90 by 1.
     accel_g : float, optional
-        Throttle acceleration along the slope; default the setup's ``terrain.accel_g``. [g]
-        Ignored with ``load="none"`` (no tyre force, no acceleration).
-    load : {"climb", "none"}, optional
-        Steady climb (tyres carry ``F_req``) or no load; default the setup's ``terrain.load``.
+        Throttle acceleration along the slope for the sweep and the throttle angles; default the
+        setup's ``terrain.accel_g``. [g]
+    stiffness : (float, float), optional
+        Front and rear slip stiffness per unit load to use instead of the setup's. [-]
 
     Returns
     -------
     Analysis
-        ``angles_deg`` holds ``balance``, ``front_lift``, ``rear_lift``, ``sidehill_roll``,
-        ``sidehill_slide``, ``handover``, ``handover_no_load`` and ``max_grade`` [deg]; None where
-        an angle does not exist (no overdrive, or no such slope below 90°).
+        ``angles_deg`` (steady climb) holds ``balance``, ``front_lift``, ``rear_lift``,
+        ``sidehill_roll``, ``sidehill_slide``, ``handover``, ``handover_weight_only`` (rule of
+        thumb) and ``max_grade`` [deg]; None where an angle does not exist. With a throttle,
+        ``angles_with_throttle_deg`` holds the same keys at that acceleration.
     """
     if slopes_deg is None:
         slopes_deg = np.arange(0.0, 91.0, 1.0)
     slopes = np.asarray(slopes_deg, dtype=float)
-    load = setup.terrain.load if load is None else load
     accel = setup.terrain.accel_g if accel_g is None else accel_g
-    if load not in ("climb", "none"):
-        raise ValueError(f"load must be 'climb' or 'none', not {load!r}")
     rig = effective_rig(setup)
-    od = setup_overdrive(setup)
-    model = _Model(rig, setup, od.overdriven_axle, load, accel)
-    no_load = _Model(rig, setup, od.overdriven_axle, "none", 0.0)
+    ratio = speed_ratio_of(setup)
+    model = _Model(rig, setup, accel, ratio, stiffness)
+    angles, limit = _named_angles(model.steady())
+    throttle, throttle_limit = (None, None) if accel == 0 else _named_angles(model)
+    return Analysis(setup, rig, setup_overdrive(setup), accel, angles, limit, model.sweep(slopes),
+                    throttle, throttle_limit, model)
 
-    sweep = model.sweep(slopes)
 
-    climb = model if model.climb else _Model(rig, setup, od.overdriven_axle, "climb", 0.0)
-    max_grade, limit = _max_grade(model)
-    a = model.accel
-    b, h, L = rig.cg_from_rear_mm, rig.cg_height_mm, rig.wheelbase_mm
-    angles = {
-        "balance": _finite_or_none(st.balance_angle_deg(L, b, h, a)),
-        "front_lift": _finite_or_none(st.front_lift_angle_deg(b, h, a)),
-        "rear_lift": _finite_or_none(st.rear_lift_angle_deg(L, b, h, a)),
-        "sidehill_roll": st.sidehill_roll_angle_deg(rig.track_mm, h),
-        "sidehill_slide": st.sidehill_slide_angle_deg(model.mu_f[0], model.mu_r[0]),
-        "handover": _handover_deg(climb),
-        "handover_no_load": _handover_deg(no_load),
-        "max_grade": max_grade,
-    }
-    return Analysis(setup, rig, od, load, a, angles, limit, sweep, model)
+def with_stiffness(setup: Setup, stiffness: float) -> Setup:
+    """`setup` with one slip stiffness for both axles (overrides cleared). [-]"""
+    return replace(setup, grip=replace(setup.grip, slip_stiffness=stiffness,
+                                       front_slip_stiffness=None, rear_slip_stiffness=None))

@@ -14,6 +14,8 @@ import math
 from dataclasses import dataclass
 from typing import Optional, Sequence
 
+import numpy as np
+
 # Below this the mismatch is rounding noise from gear and tyre ratios, not an overdrive.
 SAME_SPEED_TOL = 1e-9
 
@@ -97,3 +99,34 @@ def overdrive_figures(gear_pct: float, tire_dia_front_mm: float, tire_dia_rear_m
         overdriven_axle=axle,
         turn_match_steer_deg=steer,
     )
+
+
+def rolling_dia_under_load_mm(level_dia_mm, loss_mm_per_100g, normal_g, level_normal_g, free_dia_mm):
+    """Roll-out diameter of a tyre at another axle load (MODEL section 4).
+
+    Parameters
+    ----------
+    level_dia_mm : float
+        Roll-out diameter at the rig's level static load on that axle. [mm]
+    loss_mm_per_100g : float
+        Diameter lost per 100 g more load on that axle. [mm]
+    normal_g, level_normal_g : array_like
+        Axle load now and on level ground. [gf]
+    free_dia_mm : float
+        The tyre's free (outer) diameter, the clamp above. [mm]
+
+    Returns
+    -------
+    ndarray
+        ``D(N) = D − d (N − N_level)/100`` [mm], with the load change held within ±N_level (a
+        roll-out measured at about the level load says little beyond twice it) and the diameter
+        at most the free diameter. The effective rolling radius lies between the loaded and the
+        free radius, so the free diameter bounds it (Pacejka 2012, sec. 3.2; Wong, ch. 1).
+    """
+    change = np.clip(np.asarray(normal_g, float) - level_normal_g, -level_normal_g, level_normal_g)
+    return np.minimum(level_dia_mm - loss_mm_per_100g * change / 100.0, free_dia_mm)
+
+
+def loaded_speed_ratio(gear_pct, front_dia_mm, rear_dia_mm):
+    """``K = (1 + p/100) D_f(N_f)/D_r(N_r)``: front over rear tread speed. [-] (MODEL section 4)"""
+    return (1.0 + gear_pct / 100.0) * np.asarray(front_dia_mm, float) / np.asarray(rear_dia_mm, float)

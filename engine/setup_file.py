@@ -26,7 +26,7 @@ else:  # pragma: no cover - exercised on Python 3.10 only
     import tomli as tomllib
 
 from .setup_model import (
-    FIELDS, LOAD_MODES, SCHEMA_VERSION, BallastItem, Course, Driveline, Grip, Rig, Setup, Terrain,
+    FIELDS, RIGID, SCHEMA_VERSION, BallastItem, Course, Driveline, Grip, Rig, Setup, Terrain,
     cross_field_problems, rule_for,
 )
 from .safe_text import one_line  # the one escaping rule for every message
@@ -45,11 +45,14 @@ SECTIONS = ("rig", "driveline", "grip", "terrain", "course")
 TOP_KEYS = ("schema", "name", "notes") + SECTIONS
 SECTION_KEYS = {
     "rig": ("mass_g", "wheelbase_mm", "front_bias_pct", "cg_height_mm", "track_mm",
-            "tire_dia_front_mm", "tire_dia_rear_mm", "roll_stiffness_front_pct", "ballast"),
+            "tire_dia_front_mm", "tire_dia_rear_mm", "roll_stiffness_front_pct", "rolling_dia_front_mm",
+            "rolling_dia_rear_mm", "rolling_dia_loss_front_mm_per_100g", "rolling_dia_loss_rear_mm_per_100g",
+            "ballast"),
     "driveline": ("overdrive_pct", "front_stages", "rear_stages"),
     "grip": ("mu_static", "mu_kinetic", "rolling_resistance", "front_mu_static", "front_mu_kinetic",
-             "rear_mu_static", "rear_mu_kinetic"),
-    "terrain": ("slope_deg", "accel_g", "load", "heading_deg"),
+             "rear_mu_static", "rear_mu_kinetic", "slip_stiffness", "front_slip_stiffness",
+             "rear_slip_stiffness"),
+    "terrain": ("slope_deg", "accel_g", "load", "heading_deg"),  # load: retired, read only to warn
     "course": ("name", "points_mm", "belly_clearance_mm"),
 }
 BALLAST_KEYS = ("name", "mass_g", "x_mm", "z_mm")
@@ -142,6 +145,8 @@ class _Reader:
                 return rule.default
             self.fail(dotted, f"{dotted}: missing; required, {rule.allowed()}" + (f" [{rule.unit}]" if rule.unit else ""))
         value = table[key]
+        if rule.rigid_ok and value == RIGID:
+            return math.inf
         problem = rule.problem(value)
         if problem:
             unit = f" [{rule.unit}]" if rule.unit else ""
@@ -252,11 +257,12 @@ class _Reader:
                        for k in SECTION_KEYS["grip"]})
 
         t = self.table("terrain", True)
-        load = self.text_value(t, "load", "terrain.load", "climb")
-        if load not in LOAD_MODES:
-            self.fail("terrain.load", f"terrain.load = {_show(load)}: must be one of {', '.join(map(repr, LOAD_MODES))}")
+        if "load" in t:
+            self.warnings.append(
+                f"{self.path}:{find_line(self.text, 'terrain.load') or '?'}: terrain.load is retired and ignored:"
+                " every result is now for a climb under load (the weight-only figure is shown as a rule of thumb)")
         terrain = Terrain(self.number(t, "slope_deg", "terrain.slope_deg"),
-                          self.number(t, "accel_g", "terrain.accel_g"), load,
+                          self.number(t, "accel_g", "terrain.accel_g"),
                           self.number(t, "heading_deg", "terrain.heading_deg"))
 
         course = self.course() if "course" in d else None
@@ -470,7 +476,7 @@ def load_setup(path) -> LoadedSetup:
 
 def _is_text_key(key: str) -> bool:
     parts = key.split(".")
-    return key in ("name", "notes", "terrain.load") or (
+    return key in ("name", "notes") or (
         len(parts) == 4 and parts[:2] == ["rig", "ballast"] and parts[3] == "name")
 
 
@@ -482,8 +488,6 @@ def check_value(setup: Setup, key: str, value) -> Optional[str]:
     if _is_text_key(key):
         if not isinstance(value, str):
             return "must be text"
-        if key == "terrain.load" and value not in LOAD_MODES:
-            return f"must be one of {', '.join(map(repr, LOAD_MODES))}"
     elif len(parts) >= 2 and parts[0] == "driveline" and parts[1] in ("front_stages", "rear_stages"):
         # one tooth count at a time: driveline.front_stages.<stage>.<0 driver | 1 driven>
         stages = getattr(setup.driveline, parts[1])

@@ -12,6 +12,11 @@ from dataclasses import dataclass, replace
 from typing import Optional
 
 SCHEMA_VERSION = 1
+# Slip stiffness per unit load used when a file gives none. From memory, not a measurement:
+# car tyres on dry roads run at roughly 15–25 (force per unit slip over load); soft, foam-filled,
+# low-pressure crawler tyres are much softer, so 10 is a starting guess to replace by the slip test.
+DEFAULT_SLIP_STIFFNESS = 10.0
+RIGID = "rigid"  # the file's word for an infinitely stiff tyre (the rigid-driveline rule)
 
 
 @dataclass(frozen=True)
@@ -37,6 +42,17 @@ class Rig:
     tire_dia_rear_mm: float
     ballast: tuple[BallastItem, ...] = ()
     roll_stiffness_front_pct: Optional[float] = None  # front share of the roll moment; None: by axle load
+    # roll-out diameters at the level static load (None: the tyre diameter) and their loss per
+    # 100 g more load on that axle (MODEL section 4)
+    rolling_dia_front_mm: Optional[float] = None
+    rolling_dia_rear_mm: Optional[float] = None
+    rolling_dia_loss_front_mm_per_100g: float = 0.0
+    rolling_dia_loss_rear_mm_per_100g: float = 0.0
+
+    def rolling_dia_mm(self) -> tuple[float, float]:
+        """(front, rear) roll-out diameters at the level static load. [mm]"""
+        f, r = self.rolling_dia_front_mm, self.rolling_dia_rear_mm
+        return (self.tire_dia_front_mm if f is None else f, self.tire_dia_rear_mm if r is None else r)
 
 
 @dataclass(frozen=True)
@@ -66,6 +82,19 @@ class Grip:
     front_mu_kinetic: Optional[float] = None
     rear_mu_static: Optional[float] = None
     rear_mu_kinetic: Optional[float] = None
+    # slip stiffness per unit load c (MODEL section 5); math.inf is the rigid-driveline rule
+    slip_stiffness: float = DEFAULT_SLIP_STIFFNESS
+    front_slip_stiffness: Optional[float] = None
+    rear_slip_stiffness: Optional[float] = None
+
+    def axle_stiffness(self) -> tuple[float, float]:
+        """(front, rear) slip stiffness per unit load with overrides applied; inf: rigid. [-]"""
+        f, r = self.front_slip_stiffness, self.rear_slip_stiffness
+        return (self.slip_stiffness if f is None else f, self.slip_stiffness if r is None else r)
+
+    @property
+    def rigid(self) -> bool:
+        return all(math.isinf(c) for c in self.axle_stiffness())
 
     def axle_mu(self) -> tuple[float, float, float, float]:
         """(front static, front kinetic, rear static, rear kinetic) with overrides applied."""
@@ -78,16 +107,12 @@ class Grip:
         )
 
 
-LOAD_MODES = ("climb", "none")
-
-
 @dataclass(frozen=True)
 class Terrain:
-    """The slope being tuned for and how the rig is driven on it."""
+    """The slope being tuned for and how the rig is driven on it (always a climb under load)."""
 
     slope_deg: float
     accel_g: float = 0.0  # throttle acceleration along the slope [g]
-    load: str = "climb"  # "climb": steady climb; "none": coasting / creeping
     heading_deg: float = 0.0  # nose from straight up the fall line, clockwise from above [deg]
 
 
@@ -144,10 +169,13 @@ class FieldRule:
     default: Optional[float] = None
     unit: str = ""
     help: str = ""
+    rigid_ok: bool = False  # math.inf allowed (written "rigid" in the file)
 
     def allowed(self) -> str:
         """What is allowed, in words, for error messages (numbers as people write them: 1,000,000)."""
         kind = "a whole number" if self.integer else "a number"
+        if self.rigid_ok:
+            kind = f'"{RIGID}" or {kind}'
         if self.lo is not None and self.hi is not None:
             return (
                 f"{kind} {'>' if self.lo_open else '>='} {self.lo:,.10g} and "
@@ -165,6 +193,8 @@ class FieldRule:
             return f"must be {self.allowed()}"
         if self.integer and not isinstance(value, int):
             return f"must be {self.allowed()}"
+        if self.rigid_ok and value == math.inf:
+            return None
         if not math.isfinite(value):
             return f"must be finite: {self.allowed()}"
         if self.lo is not None and (value <= self.lo if self.lo_open else value < self.lo):
@@ -207,6 +237,20 @@ FIELDS: dict[str, FieldRule] = {
     "grip.front_mu_kinetic": FieldRule(**_POS, hi=5.0, hi_open=False, optional=True, help="front kinetic friction"),
     "grip.rear_mu_static": FieldRule(**_POS, hi=5.0, hi_open=False, optional=True, help="rear static friction"),
     "grip.rear_mu_kinetic": FieldRule(**_POS, hi=5.0, hi_open=False, optional=True, help="rear kinetic friction"),
+    "grip.slip_stiffness": FieldRule(**_POS, hi=1e6, hi_open=False, optional=True, default=DEFAULT_SLIP_STIFFNESS,
+                                     rigid_ok=True, help="slip stiffness per unit load (\"rigid\": no slip)"),
+    "grip.front_slip_stiffness": FieldRule(**_POS, hi=1e6, hi_open=False, optional=True, rigid_ok=True,
+                                           help="front slip stiffness per unit load"),
+    "grip.rear_slip_stiffness": FieldRule(**_POS, hi=1e6, hi_open=False, optional=True, rigid_ok=True,
+                                          help="rear slip stiffness per unit load"),
+    "rig.rolling_dia_front_mm": FieldRule(**_DIVISOR_MM, hi=1e4, optional=True, unit="mm",
+                                          help="front roll-out diameter at the level load"),
+    "rig.rolling_dia_rear_mm": FieldRule(**_DIVISOR_MM, hi=1e4, optional=True, unit="mm",
+                                         help="rear roll-out diameter at the level load"),
+    "rig.rolling_dia_loss_front_mm_per_100g": FieldRule(lo=0.0, lo_open=False, hi=100.0, optional=True, default=0.0,
+                                                        unit="mm", help="front roll-out loss per 100 g more load"),
+    "rig.rolling_dia_loss_rear_mm_per_100g": FieldRule(lo=0.0, lo_open=False, hi=100.0, optional=True, default=0.0,
+                                                       unit="mm", help="rear roll-out loss per 100 g more load"),
     "terrain.slope_deg": FieldRule(lo=-90.0, hi=90.0, unit="deg", help="nose up > 0"),
     "terrain.heading_deg": FieldRule(lo=-180.0, hi=180.0, lo_open=False, hi_open=False, optional=True,
                                      default=0.0, unit="deg",
@@ -244,6 +288,19 @@ def cross_field_problems(setup: Setup) -> list[tuple[str, str]]:
         out.append(("grip.front_mu_kinetic", f"front kinetic mu {fk:g} must be <= front static mu {fs:g}"))
     if rk > rs and (g.rear_mu_kinetic is not None or g.rear_mu_static is not None):
         out.append(("grip.rear_mu_kinetic", f"rear kinetic mu {rk:g} must be <= rear static mu {rs:g}"))
+    cf, cr = g.axle_stiffness()
+    for side, c, mu in (("front", cf, fs), ("rear", cr, rs)):
+        if c <= 3.0 * mu:
+            key = f"grip.{side}_slip_stiffness" if getattr(g, f"{side}_slip_stiffness") is not None else "grip.slip_stiffness"
+            out.append((key, f"{side} slip stiffness {c:g} must be above 3 x its static mu ({3.0 * mu:g}):"
+                             " a softer brush tyre could never slide fully"))
+    r = setup.rig
+    for side in ("front", "rear"):
+        roll = getattr(r, f"rolling_dia_{side}_mm")
+        tyre = getattr(r, f"tire_dia_{side}_mm")
+        if roll is not None and roll > tyre:
+            out.append((f"rig.rolling_dia_{side}_mm",
+                        f"roll-out diameter {roll:g} is above the tyre's outer diameter {tyre:g} mm"))
     if setup.rig.ballast:
         # Imported here to keep this module free of numpy for the tuner's fast start.
         from .ballast import combine_ballast
@@ -266,5 +323,5 @@ def cross_field_problems(setup: Setup) -> list[tuple[str, str]]:
 
 __all__ = [
     "SCHEMA_VERSION", "BallastItem", "Rig", "Driveline", "Grip", "Terrain", "Course", "Setup",
-    "FieldRule", "FIELDS", "LOAD_MODES", "rule_for", "cross_field_problems",
+    "FieldRule", "FIELDS", "DEFAULT_SLIP_STIFFNESS", "RIGID", "rule_for", "cross_field_problems",
 ]

@@ -15,6 +15,8 @@ References
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 
@@ -87,32 +89,55 @@ def solve_cos_sin(p, q, c):
     return sorted(out)
 
 
-def _root_near(p, q, c, guess_deg):
-    """The root of ``p cos θ + q sin θ + c`` nearest `guess_deg`, or NaN when there is none."""
-    roots = solve_cos_sin(p, q, c)
-    if not roots:
-        return float("nan")
-    return min(roots, key=lambda r: abs(r - guess_deg))
+def crossing_deg(p, q, c, falling):
+    """Where ``p cos θ + q sin θ + c`` changes sign in [−90°, 90°], in the given direction.
 
-
-def balance_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0):
-    """Slope where front and rear normal forces are equal.
+    Parameters
+    ----------
+    p, q, c : float
+        Coefficients. [any one unit]
+    falling : bool
+        True for the zero where the function goes from positive to negative as θ grows.
 
     Returns
     -------
     float
-        [deg] Negative when the rig is rear-biased; NaN when none lies in (−90°, 90°).
+        [deg] NaN when there is no such zero in [−90°, 90°].
 
     Notes
     -----
-    ``tan θ = (b − L/2)/h`` for ``a_x = 0`` [1]_; otherwise the root of
-    ``(2b − L) cos θ − 2h sin θ − 2h a_x = 0`` nearest it.
+    ``p cos θ + q sin θ = R cos(θ − φ)`` with ``R = hypot(p, q)``, ``φ = atan2(q, p)``; its slope
+    ``−R sin(θ − φ)`` is negative on the falling zero, so ``θ = φ + acos(−c/R)`` there and
+    ``θ = φ − acos(−c/R)`` on the rising one. Choosing the branch by direction (not by nearness
+    to the unaccelerated root) keeps a hard brake or punch beyond 1 g on the right side.
+    """
+    r = math.hypot(p, q)
+    if r == 0 or abs(c) > r:
+        return float("nan")
+    phi = math.atan2(q, p)
+    turn = math.acos(max(-1.0, min(1.0, -c / r)))
+    theta = math.degrees(phi + turn if falling else phi - turn)
+    theta = (theta + 180.0) % 360.0 - 180.0
+    return theta if -90.0 <= theta <= 90.0 else float("nan")
+
+
+def balance_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0):
+    """Slope where front and rear normal forces are equal (front heavier below it).
+
+    Returns
+    -------
+    float
+        [deg] Negative when the rig is rear-biased; NaN when none lies in [−90°, 90°].
+
+    Notes
+    -----
+    ``tan θ = (b − L/2)/h`` for ``a_x = 0`` [1]_; in general the falling zero of
+    ``(2b − L) cos θ − 2h sin θ − 2h a_x``.
     """
     b, h, half = cg_from_rear_mm, cg_height_mm, wheelbase_mm / 2.0
-    guess = float(np.degrees(np.arctan2(b - half, h)))
     if accel_g == 0:
-        return guess
-    return _root_near(2 * (b - half), -2 * h, -2 * h * accel_g, guess)
+        return float(np.degrees(np.arctan2(b - half, h)))
+    return crossing_deg(2 * (b - half), -2 * h, -2 * h * accel_g, falling=True)
 
 
 def front_lift_angle_deg(cg_from_rear_mm, cg_height_mm, accel_g=0.0):
@@ -121,18 +146,17 @@ def front_lift_angle_deg(cg_from_rear_mm, cg_height_mm, accel_g=0.0):
     Returns
     -------
     float
-        [deg] NaN when none lies in (−90°, 90°).
+        [deg] NaN when none lies in [−90°, 90°].
 
     Notes
     -----
-    ``tan θ = b/h`` for ``a_x = 0`` [1]_, [2]_; otherwise the root of
-    ``b cos θ − h sin θ − h a_x = 0`` nearest it.
+    ``tan θ = b/h`` for ``a_x = 0`` [1]_, [2]_; in general the falling zero of
+    ``b cos θ − h sin θ − h a_x`` (the front unloads as the slope grows).
     """
     b, h = cg_from_rear_mm, cg_height_mm
-    guess = float(np.degrees(np.arctan2(b, h)))
     if accel_g == 0:
-        return guess
-    return _root_near(b, -h, -h * accel_g, guess)
+        return float(np.degrees(np.arctan2(b, h)))
+    return crossing_deg(b, -h, -h * accel_g, falling=True)
 
 
 def rear_lift_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0):
@@ -141,18 +165,17 @@ def rear_lift_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0
     Returns
     -------
     float
-        [deg], negative. NaN when none lies in (−90°, 90°).
+        [deg], usually negative. NaN when none lies in [−90°, 90°].
 
     Notes
     -----
-    ``tan θ = −a/h`` with ``a = L − b`` for ``a_x = 0`` [1]_; otherwise the root of
-    ``a cos θ + h sin θ + h a_x = 0`` nearest it.
+    ``tan θ = −a/h`` with ``a = L − b`` for ``a_x = 0`` [1]_; in general the rising zero of
+    ``a cos θ + h sin θ + h a_x`` (the rear unloads as the slope falls).
     """
     a, h = wheelbase_mm - cg_from_rear_mm, cg_height_mm
-    guess = float(np.degrees(np.arctan2(-a, h)))
     if accel_g == 0:
-        return guess
-    return _root_near(a, h, h * accel_g, guess)
+        return float(np.degrees(np.arctan2(-a, h)))
+    return crossing_deg(a, h, h * accel_g, falling=False)
 
 
 def sidehill_roll_angle_deg(track_mm, cg_height_mm):
