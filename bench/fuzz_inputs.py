@@ -260,7 +260,6 @@ slope_arrays = st.one_of(
 )
 analyse_options = st.fixed_dictionaries({
     "accel_g": st.one_of(st.none(), st.floats(-2.0, 2.0)),
-    "load": st.sampled_from([None, "climb", "none"]),
 })
 
 # ---------------------------------------------------------------------------- checks
@@ -298,10 +297,10 @@ def check_loaded(setup, warnings) -> None:
         assert FIELDS[f"rig.{key}"].problem(v) is None, f"rig.{key} = {v!r} loaded"
 
 
-def check_analysis(setup, slopes, accel_g=None, load=None) -> None:
+def check_analysis(setup, slopes, accel_g=None) -> None:
     """`analyse` never raises on a loaded setup and returns finite forces and sane angles."""
     slopes = np.asarray(slopes, dtype=float)
-    a = analyse(setup, slopes, accel_g=accel_g, load=load)
+    a = analyse(setup, slopes, accel_g=accel_g)
     s = a.sweep
     for name in ("front_normal_g", "rear_normal_g", "required_g"):
         arr = getattr(s, name)

@@ -22,8 +22,9 @@ from .analysis import setup_overdrive
 from .setup_model import FIELDS, BallastItem, Driveline, Setup, cross_field_problems, rule_for
 
 def _climb_accel_g(setup: Setup) -> float:
-    """The throttle acceleration `analyse` uses for this setup's angles. [g]"""
-    return setup.terrain.accel_g if setup.terrain.load == "climb" else 0.0
+    """The throttle acceleration of the named angles `analyse` reports: they are for a steady
+    climb, so 0. [g]"""
+    return 0.0
 
 
 def _rule_span(key: str, offset: float = 0.0) -> tuple[float, float]:
@@ -97,7 +98,7 @@ class AddBallast:
         return float(value)
 
     def monotone(self, angle: str, setup: Setup) -> bool:
-        if angle == "handover_no_load":
+        if angle == "handover_weight_only":
             return True
         return angle in ("balance", "front_lift") and abs(_climb_accel_g(setup)) < 1.0
 
@@ -192,11 +193,12 @@ class CgHeight:
 
     def monotone(self, angle: str, setup: Setup) -> bool:
         accel = _climb_accel_g(setup)
-        if angle == "handover_no_load":
+        if angle == "handover_weight_only":
             return True
         if angle in ("balance", "front_lift"):
             return abs(accel) < 1.0
-        return angle == "handover" and accel >= 0
+        # proven for the rigid rule's closed form only; tyre slip is searched by scan and bracket
+        return angle == "handover" and accel >= 0 and setup.grip.rigid
 
 
 @dataclass(frozen=True)

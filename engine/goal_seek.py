@@ -1,6 +1,6 @@
 """Goal seek: the smallest change of one lever that brings a named angle to a target.
 
-A target (`goal_targets`) is one named angle of `analyse` (``handover``, ``handover_no_load``,
+A target (`goal_targets`) is one named angle of `analyse` (``handover``, ``handover_weight_only``,
 ``balance``, ``max_grade``, ``front_lift``) kept ``>=`` or ``<=`` a value in degrees. A lever
 (`goal_levers`) is one scalar the builder can change, with limits: added ballast mass, a ballast
 item's place, the CG height, the gear overdrive or the tyre compound.
@@ -23,7 +23,7 @@ because the margin moves one way at every slope:
 - `MoveBallast` with any target but ``max_grade``: the item's ``x`` moves the CG ``b`` linearly
   with ``h`` fixed, and every normal force ``N_f = W (b cos θ − h (sin θ + a_x))/L`` [1]_ grows
   with ``b`` at every slope below 90°, so each first zero (balance, lift, handover) moves one way.
-- `AddBallast` with ``balance``, ``front_lift`` or ``handover_no_load``: each angle solves
+- `AddBallast` with ``balance``, ``front_lift`` or ``handover_weight_only``: each angle solves
   ``r = (sin θ + a_x)/cos θ`` for a CG ratio ``r`` (``(b − L/2)/h``, ``b/h``, or ``(b − ρL)/h``
   with ``ρ = μ_r/(μ_f + μ_r)`` for the no-load handover, where ``a_x = 0``), and the right side
   grows with θ for ``|a_x| < 1 g``. Each ratio is linear-fractional in ``m``

@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 from .analysis import Analysis
 
-TARGET_ANGLES = ("handover", "handover_no_load", "balance", "max_grade", "front_lift")
+TARGET_ANGLES = ("handover", "handover_weight_only", "balance", "max_grade", "front_lift")
 OPS = (">=", "<=")
 
 
@@ -53,7 +53,7 @@ class Target:
 def angle_value_deg(analysis: Analysis, name: str) -> float:
     """A named angle as a number for comparison. [deg]
 
-    ``handover`` and ``handover_no_load`` are +inf when an axle is overdriven but never lets go
+    ``handover`` and ``handover_weight_only`` are +inf when an axle is overdriven but never lets go
     first below 90° (the handover lies beyond the climbs), NaN when no axle is overdriven (the
     angle does not exist). Other missing angles are NaN.
     """

@@ -29,6 +29,7 @@ from .traction import FRONT, REAR
 from .tyre_brush import brush_lambda, slip_for_force
 
 GRID_STEP_DEG = 0.05
+ONSET_EVERY = 5  # onset states every 0.25°
 
 
 def scrub_persists(model, slope_deg):
@@ -76,14 +77,16 @@ def scrub_bands(model) -> dict:
     """
     grid = np.arange(-90.0, 90.0 + GRID_STEP_DEG / 2, GRID_STEP_DEG)
     masks = scrub_persists(model, grid)
-    onset = model.state(grid).state
+    coarse = grid[::ONSET_EVERY]  # the onset solve is iterative: a coarser grid finds where it lies
+    onset_codes = model.state(coarse).state
     out = {}
     for name, mask, code in (("front", masks[0], FRONT), ("rear", masks[1], REAR)):
         runs = _runs(mask)
         if not runs:
             out[name] = None
             continue
-        with_onset = [r for r in runs if np.any(onset[r[0]:r[1] + 1] == code)]
+        at = coarse[onset_codes == code]
+        with_onset = [r for r in runs if np.any((at >= grid[r[0]]) & (at <= grid[r[1]]))]
         pick = with_onset[0] if with_onset else min(
             runs, key=lambda r: 0.0 if grid[r[0]] <= 0 <= grid[r[1]] else min(abs(grid[r[0]]), abs(grid[r[1]])))
         out[name] = [round(float(grid[pick[0]]), 2), round(float(grid[pick[1]]), 2)]

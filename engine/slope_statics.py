@@ -102,7 +102,7 @@ def crossing_deg(p, q, c, falling):
     Returns
     -------
     float
-        [deg] NaN when there is no such zero in [−90°, 90°].
+        [deg] NaN when there is no such zero strictly between −90° and 90°.
 
     Notes
     -----
@@ -118,7 +118,7 @@ def crossing_deg(p, q, c, falling):
     turn = math.acos(max(-1.0, min(1.0, -c / r)))
     theta = math.degrees(phi + turn if falling else phi - turn)
     theta = (theta + 180.0) % 360.0 - 180.0
-    return theta if -90.0 <= theta <= 90.0 else float("nan")
+    return theta if -90.0 < theta < 90.0 else float("nan")
 
 
 def balance_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, accel_g=0.0):

@@ -31,6 +31,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .overdrive import SAME_SPEED_TOL
 from .tyre_brush import brush_psi, brush_psi_slope, slip_for_force, slip_from_theoretical
 
 STATES = ("none", "front", "rear", "both", "lifted", "binds")
@@ -190,7 +191,8 @@ def _rigid_slip_state(nf, nr, f_req, mu_front, mu_rear, speed_ratio):
     if np.ndim(msf) or np.ndim(mkf) or np.ndim(msr) or np.ndim(mkr):
         raise ValueError("the rigid rule takes scalar friction coefficients")
     ratio = np.broadcast_to(np.asarray(speed_ratio, float), f_req.shape)
-    pick = {None: np.abs(ratio - 1.0) <= 1e-12, "front": ratio - 1.0 > 1e-12, "rear": ratio - 1.0 < -1e-12}
+    tol = SAME_SPEED_TOL  # below it the mismatch is rounding noise, not an overdrive
+    pick = {None: np.abs(ratio - 1.0) <= tol, "front": ratio - 1.0 > tol, "rear": ratio - 1.0 < -tol}
     parts = {k: traction_state(nf, nr, f_req, mu_front, mu_rear, k) for k, m in pick.items() if m.any()}
     out = {}
     for name in ("state", "front_force_g", "rear_force_g", "windup_g", "reserve_g"):

@@ -6,6 +6,8 @@ Pi (no deadline). `HYPOTHESIS_PROFILE=thorough` runs many more examples.
 
 from __future__ import annotations
 
+import dataclasses
+import math
 import os
 import sys
 from pathlib import Path
@@ -55,8 +57,13 @@ def _floats(lo, hi):
 
 
 @st.composite
-def rig_setups(draw, *, overdrive=True, ballast=True, per_axle=True, rolling=True, accel=True, stages=True):
-    """A valid `Setup` of a plausible (1/24 to 1/5 scale) crawler, or a strange but legal one."""
+def rig_setups(draw, *, overdrive=True, ballast=True, per_axle=True, rolling=True, accel=True, stages=True,
+               slip=False):
+    """A valid `Setup` of a plausible (1/24 to 1/5 scale) crawler, or a strange but legal one.
+
+    Tyres are rigid (the rigid-driveline rule) unless `slip`: then a slip stiffness per unit
+    load is drawn above 3 x the largest static mu, sometimes per axle, and sometimes roll-out
+    diameters that shrink with load."""
     wheelbase = draw(_floats(120.0, 600.0))
     front_dia = draw(_floats(50.0, 200.0))
     rear_dia = draw(st.one_of(st.just(front_dia), _floats(50.0, 200.0)))
@@ -96,14 +103,43 @@ def rig_setups(draw, *, overdrive=True, ballast=True, per_axle=True, rolling=Tru
                 s = draw(_floats(0.3, 2.0))
                 overrides[f"{axle}_mu_static"] = s
                 overrides[f"{axle}_mu_kinetic"] = s * draw(_floats(0.4, 1.0))
-    grip = Grip(mu_s, mu_k, draw(st.one_of(st.just(0.0), _floats(0.0, 0.1))) if rolling else 0.0, **overrides)
+    stiff = {"slip_stiffness": math.inf}
+    if slip:
+        top = 3.0 * max([mu_s] + [v for k, v in overrides.items() if k.endswith("static")])
+        stiff["slip_stiffness"] = draw(_floats(top * 1.05, max(top * 1.05, 80.0)))
+        if draw(st.booleans()):
+            stiff["rear_slip_stiffness"] = draw(_floats(top * 1.05, max(top * 1.05, 80.0)))
+        if draw(st.booleans()):
+            rig = dataclasses.replace(
+                rig, rolling_dia_front_mm=rig.tire_dia_front_mm * draw(_floats(0.9, 1.0)),
+                rolling_dia_rear_mm=rig.tire_dia_rear_mm * draw(_floats(0.9, 1.0)),
+                rolling_dia_loss_front_mm_per_100g=draw(_floats(0.0, 1.0)),
+                rolling_dia_loss_rear_mm_per_100g=draw(_floats(0.0, 1.0)))
+    grip = Grip(mu_s, mu_k, draw(st.one_of(st.just(0.0), _floats(0.0, 0.1))) if rolling else 0.0, **overrides,
+                **stiff)
     terrain = Terrain(
         slope_deg=draw(_floats(-60.0, 60.0)),
         accel_g=draw(st.one_of(st.just(0.0), _floats(-0.3, 0.3))) if accel else 0.0,
-        load=draw(st.sampled_from(("climb", "none"))),
     )
     setup = Setup(name="drawn rig", rig=rig, driveline=driveline, grip=grip, terrain=terrain)
     from hypothesis import assume
 
     assume(not cross_field_problems(setup))
     return setup
+
+
+def rigid_tyres(setup):
+    """`setup` on the rigid-driveline rule with the tyre diameters (no slip, no roll-out under load):
+    the model the closed-form references in these tests are written for."""
+    rig = dataclasses.replace(setup.rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
+                              rolling_dia_loss_front_mm_per_100g=0.0, rolling_dia_loss_rear_mm_per_100g=0.0)
+    grip = dataclasses.replace(setup.grip, slip_stiffness=math.inf, front_slip_stiffness=None,
+                               rear_slip_stiffness=None)
+    return dataclasses.replace(setup, rig=rig, grip=grip)
+
+
+def rigid_text(text: str) -> str:
+    """A demo setup file's text made rigid the same way (slip stiffness "rigid", no roll-out keys)."""
+    lines = [line for line in text.splitlines() if not line.startswith("rolling_dia")]
+    return "\n".join(line if not line.startswith("slip_stiffness") else 'slip_stiffness = "rigid"'
+                     for line in lines) + "\n"

@@ -80,7 +80,7 @@ def ref_rig_from_setup(setup, *, load: Optional[str] = None, accel_g: Optional[f
         axle_ratio = 1.0 + (d.overdrive_pct or 0.0) / 100.0
     g = setup.grip
     pick = lambda own, common: common if own is None else own  # noqa: E731
-    load = setup.terrain.load if load is None else load
+    load = "climb" if load is None else load
     accel = setup.terrain.accel_g if accel_g is None else accel_g
     return RefRig(
         weight_g=mass,
@@ -266,7 +266,8 @@ def handover_deg(rig: RefRig) -> Optional[float]:
             return max(-min(n_f, n_r), 1e-9 * rig.weight_g) / rig.weight_g
         return fast_first_margin(rig, t) / rig.weight_g
 
-    if fn(0.0) < 0:
+    # an exact tie at 0 deg (margin 0) that falls at once hands over at 0 deg
+    if fn(0.0) < 0 or (fn(0.0) <= 1e-12 and fn(SCAN_STEP_DEG) < 0):
         return 0.0
     return _crossing(fn, 0.0, 89.99, rising=False)
 

@@ -35,8 +35,7 @@ DEMOS = sorted((ROOT / "setups").glob("course-*.toml"))
 RIG = ROOT / "setups" / "marmot-overdrive.toml"
 
 
-def _with_course(setup, points, belly=40.0, load="climb"):
-    setup = setup.with_value("terrain.load", load)
+def _with_course(setup, points, belly=40.0):
     return dataclasses.replace(setup, course=Course("test", tuple(map(tuple, points)), belly))
 
 
@@ -134,7 +133,7 @@ def test_flat_to_steep_ramp_changes_state_only_in_the_corner_window_worked_by_ha
 
     th = math.radians(50.0)
     setup = Setup(name="corner rig", rig=Rig(2000.0, 300.0, 50.0, 60.0, 240.0, 110.0, 110.0, ()),
-                  driveline=Driveline(0.0), grip=Grip(1.0, 0.8, 0.0), terrain=Terrain(0.0, 0.0, "climb"))
+                  driveline=Driveline(0.0), grip=Grip(1.0, 0.8, 0.0), terrain=Terrain(0.0, 0.0))
     setup = _with_course(setup, [[0.0, 0.0], [1000.0, 0.0], [1600.0, 600.0 * math.tan(th)]])
     walk = walk_course(setup, 1.0)
     x = walk.rear_x_mm

@@ -8,6 +8,7 @@ error naming file, line and key.)
 
 from __future__ import annotations
 
+import math
 import os
 import subprocess
 import sys
@@ -48,7 +49,9 @@ EXPECTED = {
     "one_stage_list": ("rear_stages", "missing", "both front_stages and rear_stages"),
     "zero_tooth_count": ("driveline.front_stages", "tooth count 0", "whole number >= 1"),
     "fractional_tooth_count": ("driveline.rear_stages", "tooth count 12.5", "whole number"),
-    "bad_load_mode": ("terrain.load", "'uphill'", "'climb', 'none'"),
+    "bad_slip_stiffness": ("grip.slip_stiffness", "'soft'", '"rigid" or a number > 0'),
+    # MODEL section 5: c <= 3 mu_s can never saturate a driving tyre
+    "slip_stiffness_too_soft": ("grip.slip_stiffness", "2.5", "above 3 x its static mu (3)"),
     "course_x_not_increasing": ("course.points_mm", "x must increase"),
 }
 
@@ -210,3 +213,24 @@ def test_report_loads_a_good_file():
     # The positive control for the test above: the same command on a shipped setup exits 0.
     [(code, out, err)] = _run_reports([GOOD])
     assert code == 0 and err == "" and out.strip()
+
+
+def test_retired_load_mode_loads_with_one_warning(tmp_path):
+    # MODEL section 3: "no load" is not a state a rig can be in; old files keep loading
+    text = GOOD.read_text(encoding="utf-8").replace("[terrain]\n", '[terrain]\nload = "none"\n', 1)
+    p = tmp_path / "old.toml"
+    p.write_text(text, encoding="utf-8")
+    loaded = engine.load_setup(p)
+    retired = [w for w in loaded.warnings if "terrain.load" in w]
+    assert len(retired) == 1 and "retired" in retired[0] and "rule of thumb" in retired[0]
+
+
+def test_rigid_word_and_roll_out_keys_load(tmp_path):
+    text = GOOD.read_text(encoding="utf-8").replace("slip_stiffness = 40", 'slip_stiffness = "rigid"')
+    p = tmp_path / "rigid.toml"
+    p.write_text(text, encoding="utf-8")
+    s = engine.load_setup(p).setup
+    assert s.grip.rigid and s.grip.axle_stiffness() == (math.inf, math.inf)
+    assert s.rig.rolling_dia_mm() == (111.2, 109.4)
+    assert engine.check_value(s, "grip.front_slip_stiffness", 2.0).startswith("front slip stiffness 2")
+    assert engine.check_value(s, "rig.rolling_dia_front_mm", 120.0).startswith("roll-out diameter 120")

@@ -31,7 +31,7 @@ def bare_rig(**over) -> Setup:
     rig = dict(mass_g=2380.0, wheelbase_mm=313.0, front_bias_pct=57.5, cg_height_mm=88.0, track_mm=252.0,
                tire_dia_front_mm=112.0, tire_dia_rear_mm=112.0)
     rig.update(over)
-    return Setup("bare", Rig(**rig), Driveline(0.0), Grip(1.0, 0.8, 0.03), Terrain(30.0))
+    return Setup("bare", Rig(**rig), Driveline(0.0), Grip(1.0, 0.8, 0.03, slip_stiffness=math.inf), Terrain(30.0))
 
 
 def mass_centre(W, b, h, m, x, z):
@@ -142,14 +142,14 @@ def test_ballast_for_balance_matches_linear_closed_form(x, z, beta):
 
 
 def test_ballast_for_no_load_handover_with_unequal_mu_matches_closed_form():
-    # front overdriven, front tyres grippier: handover_no_load is where μ_f N_f = μ_r N_r
-    s = replace(bare_rig(), driveline=Driveline(5.0), grip=Grip(1.0, 0.8, 0.03, front_mu_static=1.2))
+    # front overdriven, front tyres grippier: handover_weight_only is where μ_f N_f = μ_r N_r
+    s = replace(bare_rig(), driveline=Driveline(5.0), grip=Grip(1.0, 0.8, 0.03, front_mu_static=1.2, slip_stiffness=math.inf))
     W, L, h, b = 2380.0, 313.0, 88.0, 0.575 * 313.0
     rho = 1.0 / (1.2 + 1.0)
     t0 = math.degrees(math.atan2(b - rho * L, h))
     beta = t0 + 3.0
     m_ref = ballast_for_balance_g(W, L, b, h, 313.0, 40.0, beta, rho)
-    p = plan(s, Target("handover_no_load", ">=", beta), AddBallast(313.0, 40.0))
+    p = plan(s, Target("handover_weight_only", ">=", beta), AddBallast(313.0, 40.0))
     assert p.reached and p.value == pytest.approx(m_ref, abs=0.1 + 1e-9)
     assert p.angle_after_deg == pytest.approx(beta, abs=0.01) and p.angle_after_deg >= beta
 
@@ -157,7 +157,10 @@ def test_ballast_for_no_load_handover_with_unequal_mu_matches_closed_form():
 def test_ballast_for_climbing_handover_matches_brentq_on_closed_form():
     # the scanned (non-monotone) case, on the demo rig with brass and tyre overdrive
     loaded = load_setup(SETUPS / "marmot-overdrive.toml")
-    s = loaded.setup
+    # the closed form is the rigid rule with the tyre diameters: no slip, no roll-out under load
+    s = loaded.setup.with_value("grip.slip_stiffness", math.inf)
+    s = replace(s, rig=replace(s.rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
+                               rolling_dia_loss_front_mm_per_100g=0.0, rolling_dia_loss_rear_mm_per_100g=0.0))
     # effective rig from the file's numbers by hand (Jazar ch. 2 mass centre)
     masses = [2380.0, 96.0, -38.0]
     xs = [0.575 * 313.0, 313.0, 120.0]
@@ -238,11 +241,11 @@ def test_move_ballast_for_balance_matches_closed_form():
 
 
 def test_overdrive_lever_steps_onto_the_front_overdriven_side():
-    # handover_no_load exists only with an overdriven axle; with equal mu it equals the balance
+    # handover_weight_only exists only with an overdriven axle; with equal mu it equals the balance
     # angle tan β = (b − L/2)/h (Gillespie ch. 2) for ANY front overdrive, so the smallest change
     # from 0 % is the smallest overdrive above 0 at the display step.
     s = bare_rig()
-    p = plan(s, Target("handover_no_load", ">=", 10.0), Overdrive(-10.0, 20.0))
+    p = plan(s, Target("handover_weight_only", ">=", 10.0), Overdrive(-10.0, 20.0))
     assert p.reached and p.method == "scan"
     assert 0 < p.value <= 0.01 + 1e-12
     b, L, h = 0.575 * 313.0, 313.0, 88.0
@@ -327,7 +330,7 @@ def test_goal_seek_imports_no_ui_package():
 @settings(max_examples=30, deadline=None)
 @given(
     setup=rig_setups(),
-    angle=st.sampled_from(["handover", "handover_no_load", "balance", "max_grade", "front_lift"]),
+    angle=st.sampled_from(["handover", "handover_weight_only", "balance", "max_grade", "front_lift"]),
     delta=st.floats(-6.0, 6.0),
     which=st.integers(0, 4),
 )

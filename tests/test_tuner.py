@@ -21,6 +21,8 @@ from slopetune.engine import load_setup
 from slopetune.tui.app import SlopeTuneApp
 from slopetune.tui.widgets.setup_form import SetupForm
 
+from conftest import rigid_text
+
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
 SIZE = (80, 24)
@@ -30,9 +32,11 @@ def run(coro):
     return asyncio.run(coro)
 
 
-def _copy(tmp_path: Path, extra_head: str = "") -> Path:
+def _copy(tmp_path: Path, extra_head: str = "", rigid: bool = False) -> Path:
     target = tmp_path / "rig.toml"
     text = DEMO.read_text(encoding="utf-8")
+    if rigid:  # the closed-form references below are the rigid-driveline rule
+        text = rigid_text(text)
     target.write_text(extra_head + text, encoding="utf-8")
     return target
 
@@ -108,7 +112,7 @@ def test_stepping_a_value_changes_chart_data_and_status(tmp_path):
 
 def test_flag_rises_across_the_handover_and_clears_going_back(tmp_path):
     async def go():
-        app = _app(_copy(tmp_path))
+        app = _app(_copy(tmp_path, rigid=True))
         async with app.run_test(size=SIZE) as pilot:
             await pilot.pause()
             handover = _reference_handover_deg(app.setup)
@@ -321,7 +325,7 @@ def test_held_key_coalesces_words_and_chart_but_ends_on_the_last_value(tmp_path)
 
 def test_pin_and_clear_baseline_shows_how_angles_moved(tmp_path):
     async def go():
-        app = _app(_copy(tmp_path))
+        app = _app(_copy(tmp_path, rigid=True))
         async with app.run_test(size=SIZE) as pilot:
             await pilot.pause()
             before = _reference_handover_deg(app.setup)

@@ -12,6 +12,8 @@ from slopetune.tui.widgets import form_fields as ff
 from slopetune.tui.widgets.load_chart import ASCII_FOLD, chart_data, plot_text
 from slopetune.tui.units import Units
 
+from conftest import rigid_tyres
+
 ROOT = Path(__file__).resolve().parent.parent
 
 
@@ -61,12 +63,11 @@ def test_demo_is_an_unsaved_copy():
 def test_every_setup_key_has_a_form_row():
     setup = demo_setup().setup
     keys = {row.key for row in ff.build_rows(setup)}
-    for section, names in (("rig", ("mass_g", "wheelbase_mm", "front_bias_pct", "cg_height_mm", "track_mm",
-                                    "tire_dia_front_mm", "tire_dia_rear_mm")),
-                           ("grip", ("mu_static", "mu_kinetic", "rolling_resistance", "front_mu_static",
-                                     "front_mu_kinetic", "rear_mu_static", "rear_mu_kinetic")),
-                           ("terrain", ("slope_deg", "accel_g", "load"))):
-        assert {f"{section}.{n}" for n in names} <= keys
+    from slopetune.engine.setup_file import SECTION_KEYS
+
+    for section in ("rig", "grip", "terrain"):
+        names = [n for n in SECTION_KEYS[section] if n not in ("ballast", "load")]  # load: retired
+        assert {f"{section}.{n}" for n in names} <= keys, section
     for i in range(len(setup.rig.ballast)):
         assert {f"rig.ballast.{i}.{k}" for k in ("name", "mass_g", "x_mm", "z_mm")} <= keys
     assert {"driveline.mode", "driveline.front_stages.0.0", "driveline.rear_stages.0.1", "name", "notes"} <= keys
@@ -136,7 +137,7 @@ def test_flag_words_match_the_reference_states_on_the_steep_side():
 
     from slopetune.tui.status_words import status_view
 
-    base = demo_setup().setup
+    base = rigid_tyres(demo_setup().setup)  # the reference is the rigid-driveline rule
     for slope in (10.0, 40.0, 45.0, 60.0, 70.0):
         setup = base.with_value("terrain.slope_deg", slope)
         view = status_view(engine.analyse(setup), Units())

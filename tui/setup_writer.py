@@ -31,7 +31,7 @@ from tomlkit.items import AoT, Array, InlineTable, Table
 
 from slopetune.engine import LoadedSetup, Setup, SetupError, parse_setup
 from slopetune.engine.setup_file import BOM, file_sha256
-from slopetune.engine.setup_model import FIELDS
+from slopetune.engine.setup_model import FIELDS, RIGID
 
 TMP_SUFFIX = ".slopetune-tmp"
 
@@ -194,6 +194,10 @@ def render_setup(loaded: Optional[LoadedSetup], setup: Setup) -> str:
                 "tire_dia_front_mm", "tire_dia_rear_mm"):
         _put(rig, key, getattr(setup.rig, key))
     _put(rig, "roll_stiffness_front_pct", setup.rig.roll_stiffness_front_pct)  # None: by axle load
+    for key in ("rolling_dia_front_mm", "rolling_dia_rear_mm"):
+        _put(rig, key, getattr(setup.rig, key))
+    for key in ("rolling_dia_loss_front_mm_per_100g", "rolling_dia_loss_rear_mm_per_100g"):
+        _optional(rig, key, getattr(setup.rig, key), 0.0)
     _merge_ballast(rig, setup.rig.ballast)
 
     dl = _section(doc, "driveline")
@@ -219,12 +223,14 @@ def render_setup(loaded: Optional[LoadedSetup], setup: Setup) -> str:
     _optional(grip, "rolling_resistance", g.rolling_resistance, FIELDS["grip.rolling_resistance"].default)
     for key in ("front_mu_static", "front_mu_kinetic", "rear_mu_static", "rear_mu_kinetic"):
         _put(grip, key, getattr(g, key))
+    _optional(grip, "slip_stiffness", _stiffness(g.slip_stiffness), FIELDS["grip.slip_stiffness"].default)
+    for key in ("front_slip_stiffness", "rear_slip_stiffness"):
+        _put(grip, key, _stiffness(getattr(g, key)))
 
     terrain = _section(doc, "terrain")
     t = setup.terrain
     _put(terrain, "slope_deg", t.slope_deg)
     _optional(terrain, "accel_g", t.accel_g, 0.0)
-    _optional(terrain, "load", t.load, "climb")
     _optional(terrain, "heading_deg", t.heading_deg, 0.0)
 
     if setup.course is not None and "course" not in doc:
@@ -259,6 +265,11 @@ def setup_difference(a, b, where: str = "") -> Optional[str]:
             and not isinstance(b, bool)):
         return None if math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-300) else where
     return None if a == b else where
+
+
+def _stiffness(value):
+    """A slip stiffness as the file spells it: the word "rigid" for an infinitely stiff tyre."""
+    return RIGID if value is not None and math.isinf(value) else value
 
 
 def _remove_stale_temps(folder: Path, name: str) -> None:

@@ -32,17 +32,35 @@ class StatusView(NamedTuple):
 
 
 def handover_deg(analysis: Analysis) -> Optional[float]:
-    """The handover for the setup's own load mode (climbing, or the weight-only one with no load)."""
-    key = "handover" if analysis.load == "climb" else "handover_no_load"
-    return analysis.angles_deg.get(key)
+    """The handover of a steady climb (the named figure; the throttle does not move it)."""
+    return analysis.angles_deg.get("handover")
 
 
-def here_at(analysis: Analysis, slope_deg: float) -> tuple[str, Optional[str]]:
-    """(slip state, lifted axle or None) at one slope, from one evaluation."""
+class Here(NamedTuple):
+    """The setup at one slope: its slip state, lifted axle and per-axle tyre figures."""
+
+    state: str
+    lifted: Optional[str]
+    grip_used: tuple = (None, None)  # (front, rear) |F|/(mu_s N); None when lifted
+    slip_pct: tuple = (None, None)  # (front, rear) kappa [%]; None on a sliding or lifted axle
+    windup_g: Optional[float] = None
+
+
+def here_at(analysis: Analysis, slope_deg: float) -> Here:
+    """The setup's state and tyre figures at one slope, from one evaluation."""
+    import math
+
     import numpy as np
 
     sweep = analysis.at(np.array([slope_deg]))
-    return sweep.slipping[0], sweep.lifted[0]
+    t = sweep.traction
+
+    def num(x):
+        x = float(x[0])
+        return x if math.isfinite(x) else None
+
+    return Here(sweep.slipping[0], sweep.lifted[0], (num(t.front_grip_used), num(t.rear_grip_used)),
+                (num(t.front_slip_pct), num(t.rear_slip_pct)), num(t.windup_g))
 
 
 def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optional[float]:
@@ -64,9 +82,9 @@ def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optio
 
 
 def flag_line(analysis: Analysis, slope_deg: float, units: Units,
-              here: Optional[tuple[str, Optional[str]]] = None) -> tuple[str, str]:
+              here: Optional[Here] = None) -> tuple[str, str]:
     """(level, words) of the flag at `slope_deg` (`here`: `here_at` of it, when already known)."""
-    here, axle = here or here_at(analysis, slope_deg)
+    here, axle = (here or here_at(analysis, slope_deg))[:2]
     at = units.slope(slope_deg)
     if here == "lifted":
         tips = "flips backwards" if axle == "front" else "tips forwards"
@@ -83,24 +101,27 @@ def flag_line(analysis: Analysis, slope_deg: float, units: Units,
         way = "up" if near > slope_deg else "down"
         return "warn", (f"SLIP FLAG: overdriven {fast} lets go first from {units.angle(near)}"
                         f" ({units.angle(abs(near - slope_deg))} {way})")
+    if here == "none":
+        return "ok", f"OK: both axles grip here; the tyres carry the {fast} overdrive as slip"
     return "ok", f"OK: {OTHER[fast]} lets go first here; overdriven {fast} keeps its grip"
 
 
 def _overdrive_line(analysis: Analysis, units: Units) -> str:
-    od, rig = analysis.overdrive, analysis.rig
-    tyres = f"{units.number('length', rig.tire_dia_front_mm)}/{units.with_unit('length', rig.tire_dia_rear_mm)}"
+    od = analysis.overdrive
+    dia_f, dia_r = analysis.setup.rig.rolling_dia_mm()  # roll-out when measured: what the ground sees
+    tyres = f"{units.number('length', dia_f)}/{units.with_unit('length', dia_r)}"
     if od.overdriven_axle is None:
         return f"No overdrive, no wind-up (gears {od.gear_pct:+.1f}%, {tyres})"
     return (f"{od.overdriven_axle.capitalize()} overdriven {abs(od.effective_pct):.1f}%"
             f" (gears {od.gear_pct:+.1f}%, {tyres})")
 
 
-def _here_line(analysis: Analysis, slope_deg: float, units: Units, here: tuple[str, Optional[str]]) -> str:
-    here, axle = here
-    how = "climbing" if analysis.load == "climb" else "no load"
+def _here_line(analysis: Analysis, slope_deg: float, units: Units, here: Here) -> str:
+    here, axle = here[:2]
+    how = "climbing" + (f", throttle {analysis.accel_g:+g} g" if analysis.accel_g else "")
     head = f"At {units.slope(slope_deg)} {how}: "
     if here in ("front", "rear"):
-        return head + f"{here} slips first, {OTHER[here]} holds"
+        return head + f"{here} lets go, {OTHER[here]} holds"
     if here == "none":
         return head + "both axles grip"
     if here == "both":
@@ -115,13 +136,72 @@ def _away(angle: float, slope_deg: float, units: Units, above: str, below: str) 
     return f"{units.angle(abs(gap))} {above if gap > 0 else below}"
 
 
+def grip_line(here: Here) -> str:
+    """Grip used and slip of each axle, in words and figures (not only colour)."""
+    if here.state == "lifted":
+        return "Grip: an axle is off the ground"
+    parts = []
+    for name, used, slip in zip(("front", "rear"), here.grip_used, here.slip_pct):
+        if used is None:
+            continue
+        what = "sliding" if slip is None else f"slip {slip:+.1f}%"
+        parts.append(f"{name} {100 * used:.0f}% ({what})")
+    text = "Grip used: " + ", ".join(parts)
+    if here.windup_g is not None and here.state == "none" and abs(here.windup_g) >= 0.5:
+        text += f"; wind-up {abs(here.windup_g):.0f} g"
+    return text
+
+
 def _handover_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
     h = handover_deg(analysis)
-    if analysis.overdrive.overdriven_axle is None:
+    od = analysis.overdrive
+    if od.overdriven_axle is None:
         return "Handover: none (no overdrive)"
+    amount = f"{abs(od.effective_pct):.1f}% {od.overdriven_axle} overdrive"
     if h is None:
-        return f"Handover: none below {units.angle(90)}"
-    return f"Handover {units.angle(h)}, " + _away(h, slope_deg, units, "above this slope", "below this slope")
+        return f"Handover: none below the max grade at {amount}"
+    return f"Handover {units.angle(h)} at {amount}, " + _away(h, slope_deg, units, "up", "down")
+
+
+def stiffness_text(c) -> str:
+    """A slip stiffness in words: "rigid" or the number (per axle when they differ)."""
+    import math
+
+    if isinstance(c, tuple):
+        return "/".join(stiffness_text(x) for x in c)
+    return "rigid" if math.isinf(c) else f"{c:g}"
+
+
+def sensitivity_line(analysis: Analysis, units: Units) -> str:
+    """How the handover depends on the slip stiffness: softer, stiffer and rigid tyres."""
+    g = analysis.setup.grip
+    own = stiffness_text(g.axle_stiffness() if g.front_slip_stiffness or g.rear_slip_stiffness
+                         else g.slip_stiffness)
+    parts = []
+    for label, (c, ang) in analysis.stiffness_sensitivity().items():
+        h = ang["handover"]
+        name = "rigid" if label == "rigid" else f"c {stiffness_text(c)}"
+        parts.append(f"{name} {'none' if h is None else units.angle(h)}")
+    return f"Handover vs slip stiffness (yours {own}): " + ", ".join(parts)
+
+
+def scrub_band_line(analysis: Analysis, units: Units) -> Optional[str]:
+    """Once a scrub starts it lasts over a wider range (kinetic < static friction)."""
+    bands = analysis.scrub_bands()
+    parts = [f"{axle} {units.angle(lo)} to {units.angle(hi)}" for axle, band in bands.items()
+             if band is not None for lo, hi in [band]]
+    if not parts:
+        return None
+    return "Once started a scrub lasts: " + "; ".join(parts) + " (roll back to unwind between runs)"
+
+
+def slip_lines(analysis: Analysis, units: Units = Units(ascii_only=True)) -> list[str]:
+    """The tyre-slip figures of a report: stiffness sensitivity and scrub persistence."""
+    out = [sensitivity_line(analysis, units)]
+    band = scrub_band_line(analysis, units)
+    if band:
+        out.append(band)
+    return out
 
 
 def _max_grade_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
@@ -173,6 +253,7 @@ def status_view(analysis: Analysis, units: Units, baseline: Optional[Analysis] =
     lines = (
         _overdrive_line(analysis, units),
         _here_line(analysis, slope, units, here),
+        grip_line(here),
         _handover_line(analysis, slope, units),
         _max_grade_line(analysis, slope, units),
         _lift_line(analysis, slope, units),

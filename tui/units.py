@@ -23,6 +23,8 @@ _QUANTITIES = {
     "rr": ("", "", 1.0, 3, 3),
     "teeth": ("t", "t", 1.0, 0, 0),
     "accel": ("g", "g", 1.0, 2, 2),
+    "stiff": ("", "", 1.0, 1, 1),  # slip stiffness per unit load
+    "loss": ("mm", "in", MM_PER_IN, 2, 3),  # roll-out diameter lost per 100 g of axle load
 }
 
 

@@ -40,6 +40,11 @@ def _handover(a, key) -> Optional[float]:
     return v
 
 
+def _stiffness(pair) -> str:
+    words = ["rigid" if math.isinf(c) else f"{c:g}" for c in pair]
+    return words[0] if words[0] == words[1] else "/".join(words)
+
+
 # (key, label, getter, format, unit); a None format marks a text row
 ROWS: list[tuple[str, str, Callable, Optional[str]]] = [
     ("mass_g", "mass [g]", lambda a: a.rig.mass_g, ".0f"),
@@ -50,7 +55,7 @@ ROWS: list[tuple[str, str, Callable, Optional[str]]] = [
     ("overdriven_axle", "overdriven axle", lambda a: a.overdrive.overdriven_axle or "none", None),
     ("balance", "balance", lambda a: a.angles_deg["balance"], ".2f"),
     ("handover", "handover, climb", lambda a: _handover(a, "handover"), ".2f"),
-    ("handover_no_load", "handover, no load", lambda a: _handover(a, "handover_no_load"), ".2f"),
+    ("handover_weight_only", "handover, weight rule", lambda a: _handover(a, "handover_weight_only"), ".2f"),
     ("max_grade", "max grade", lambda a: a.angles_deg["max_grade"], ".2f"),
     ("max_grade_limit", "max grade ends by", lambda a: a.max_grade_limit, None),
     ("front_lift", "front lift", lambda a: a.angles_deg["front_lift"], ".2f"),
@@ -58,7 +63,8 @@ ROWS: list[tuple[str, str, Callable, Optional[str]]] = [
     ("sidehill_roll", "sidehill roll", lambda a: a.angles_deg["sidehill_roll"], ".2f"),
     ("sidehill_slide", "sidehill slide", lambda a: a.angles_deg["sidehill_slide"], ".2f"),
     ("slope_deg", "tuned slope", lambda a: a.setup.terrain.slope_deg, ".1f"),
-    ("load", "load", lambda a: a.load + (f" {a.accel_g:+g} g" if a.accel_g else ""), None),
+    ("slip_stiffness", "slip stiffness", lambda a: _stiffness(a.setup.grip.axle_stiffness()), None),
+    ("throttle", "throttle [g]", lambda a: f"{a.accel_g:+g}" if a.accel_g else "steady", None),
 ]
 
 
@@ -125,7 +131,7 @@ def compare_dict(files: list[str], analyses: list) -> dict:
                 diffs[key] = round(float(v) - float(r), 6)
             elif fmt is not None:
                 diffs[key] = None
-        beyond = [k for k in ("handover", "handover_no_load") if _handover(a, k) == math.inf]
+        beyond = [k for k in ("handover", "handover_weight_only") if _handover(a, k) == math.inf]
         out.append({"file": f, "name": a.setup.name, "values": values, "diff_vs_first": diffs,
                     "handover_beyond_90": beyond})
     return {"schema": 1, "reference": files[0], "setups": out}

@@ -29,7 +29,8 @@ Target  --target 'ANGLE>=DEG' or 'ANGLE<=DEG'  (quote it: a shell eats > and <)
         --target ANGLE:min=DEG or ANGLE:max=DEG  (the same, no quotes needed)
         angles in degrees, slope > 0 nose up:
   handover          steady climb: above it the overdriven axle slips first
-  handover_no_load  the same with no climbing force (the no-load balance)
+  handover_weight_only  rule of thumb: where the overdriven axle carries the smaller grip
+                        with no climbing force (the balance angle with equal mu)
   balance           front and rear axle loads equal
   max_grade         the steepest climb the rig holds
   front_lift        the front axle leaves the ground (tips over backwards)
@@ -70,10 +71,10 @@ ANGLE_LABELS = {
     "sidehill_roll": "sidehill roll",
     "sidehill_slide": "sidehill slide",
     "handover": "handover (climb)",
-    "handover_no_load": "handover (no load)",
+    "handover_weight_only": "handover, weight-only rule",
     "max_grade": "max grade",
 }
-_ALIASES = {"no_load_balance": "handover_no_load", "no_load": "handover_no_load", "maxgrade": "max_grade"}
+_ALIASES = {"no_load_balance": "handover_weight_only", "no_load": "handover_weight_only", "maxgrade": "max_grade"}
 _NUMBER = r"([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(?:deg|°)?"
 _TARGET = re.compile(r"^\s*([A-Za-z_\- ]+?)\s*(>=|<=|=>|=<)\s*" + _NUMBER + r"\s*$")
 _TARGET_WORDS = re.compile(r"^\s*([A-Za-z_\- ]+?)\s*:\s*(min|max)\s*=\s*" + _NUMBER + r"\s*$", re.IGNORECASE)

@@ -10,7 +10,7 @@ import numpy as np
 
 from slopetune.engine import SetupError, analyse, load_setup
 
-from ..status_words import status_view
+from ..status_words import slip_lines, status_view
 from ._args import number
 from ..units import Units
 
@@ -20,12 +20,23 @@ Analyse one setup over a range of slopes.
 Units: weights and forces in grams(-force), lengths in mm, angles in degrees.
 Slope > 0 is nose up (climbing), < 0 nose down. Forces along the ground are positive
 up-slope; a negative reserve means that axle is short of grip by that much.
-States: none (nothing slips), front / rear (that axle slips, the other grips),
-both (the rig cannot hold the grade), lifted (an axle is off the ground).
-A static model: check on the bench, hands clear of the driveline.
+States: none (both axles grip; an overdrive mismatch is carried as tyre slip),
+front / rear (that axle lets go, the other grips), both (the rig cannot hold the grade),
+lifted (an axle is off the ground). Grip used is |F|/(mu_s N) per axle (1: at its limit).
+Named angles are for a steady climb; with a throttle a second set is shown beside them.
+A static model: driveline wind-up loads gears, shafts and motors. Check on the bench,
+hands clear of the driveline; follow your club's and venue's rules.
 """
 
 MAX_ROWS = 100_000
+ANGLE_LABELS = (("balance (front = rear load)", "balance"), ("front lift (climbing)", "front_lift"),
+                ("rear lift (descending)", "rear_lift"), ("sidehill roll", "sidehill_roll"),
+                ("sidehill slide (driveline unwound)", "sidehill_slide"), ("handover (steady climb)", "handover"),
+                ("handover, weight-only rule of thumb", "handover_weight_only"))
+THROTTLE_SHORT = (("handover", "handover"), ("max grade", "max_grade"), ("balance", "balance"),
+                  ("front lift", "front_lift"), ("rear lift", "rear_lift"))
+WORDS = {"none": "both grip", "front": "front lets go", "rear": "rear lets go", "both": "both slip",
+         "lifted": "lifted", "binds": "binds"}
 
 
 def register(sub) -> None:
@@ -38,8 +49,7 @@ def register(sub) -> None:
     p.add_argument("--step", type=number, default=1.0, metavar="DEG", help="slope step [deg] (1)")
     p.add_argument("--accel", type=number, default=None, metavar="G",
                    help="throttle acceleration along the slope [g] (the file's terrain.accel_g)")
-    p.add_argument("--load", choices=("climb", "none"), default=None,
-                   help="climb: tyres carry a steady climb; none: coasting/creeping (the file's terrain.load)")
+    p.add_argument("--load", choices=("climb", "none"), default=None, help="retired; ignored with a warning")
     p.set_defaults(func=run)
 
 
@@ -72,6 +82,7 @@ def report_dict(a) -> dict:
     """The report as plain JSON-ready data (documented in the README)."""
     r, od, s = a.rig, a.overdrive, a.sweep
     t = s.traction
+    cf, cr = a.setup.grip.axle_stiffness()
     rows = []
     lifted, slipping = s.lifted, s.slipping  # built once: each is a list over the sweep
     for i, slope in enumerate(s.slope_deg):
@@ -81,12 +92,15 @@ def report_dict(a) -> dict:
             "required_g": _num(s.required_g[i], 3), "front_force_g": _num(t.front_force_g[i], 3),
             "rear_force_g": _num(t.rear_force_g[i], 3), "windup_g": _num(t.windup_g[i], 3),
             "reserve_g": _num(t.reserve_g[i], 3), "slipping": slipping[i],
+            "front_grip_used": _num(t.front_grip_used[i]), "rear_grip_used": _num(t.rear_grip_used[i]),
+            "front_slip_pct": _num(t.front_slip_pct[i]), "rear_slip_pct": _num(t.rear_slip_pct[i]),
+            "speed_ratio": _num(s.speed_ratio[i], 6),
         })
     return {
         "schema": 1,
         "name": a.setup.name,
-        "load": a.load,
         "accel_g": a.accel_g,
+        "slip_stiffness": {"front": _stiffness(cf), "rear": _stiffness(cr)},
         "rig": {"mass_g": _num(r.mass_g, 3), "wheelbase_mm": _num(r.wheelbase_mm, 3),
                 "front_bias_pct": _num(r.front_bias_pct), "cg_height_mm": _num(r.cg_height_mm, 3),
                 "cg_from_rear_mm": _num(r.cg_from_rear_mm, 3), "track_mm": _num(r.track_mm, 3)},
@@ -95,8 +109,21 @@ def report_dict(a) -> dict:
                       "overdriven_axle": od.overdriven_axle, "turn_match_steer_deg": _num(od.turn_match_steer_deg)},
         "angles_deg": {k: _num(v) for k, v in a.angles_deg.items()},
         "max_grade_limit": a.max_grade_limit,
+        "angles_with_throttle_deg": (None if a.angles_with_throttle_deg is None
+                                     else {k: _num(v) for k, v in a.angles_with_throttle_deg.items()}),
+        "scrub_band_deg": a.scrub_bands(),
+        "stiffness_sensitivity": {label: {"slip_stiffness": _stiffness(c), "handover": _num(ang["handover"]),
+                                          "max_grade": _num(ang["max_grade"])}
+                                  for label, (c, ang) in a.stiffness_sensitivity().items()},
         "sweep": rows,
     }
+
+
+def _stiffness(c):
+    """A slip stiffness for JSON: a number, "rigid" for an infinitely stiff tyre, [f, r] per axle."""
+    if isinstance(c, tuple):
+        return [_stiffness(x) for x in c]
+    return "rigid" if math.isinf(c) else _num(c)
 
 
 def table_cell(x, width=8, digits=0) -> str:
@@ -124,30 +151,35 @@ def report_text(a) -> str:
         v = ang[key]
         return f"  {label:<32}{'-' if v is None else f'{v:7.2f}'}"
 
-    for label, key in (("balance (front = rear load)", "balance"), ("front lift (climbing)", "front_lift"),
-                       ("rear lift (descending)", "rear_lift"), ("sidehill roll", "sidehill_roll"),
-                       ("sidehill slide", "sidehill_slide"), ("handover (steady climb)", "handover"),
-                       ("handover (no load)", "handover_no_load")):
+    for label, key in ANGLE_LABELS:
         out.append(line(label, key))
     out.append(line(f"max grade (ends by {a.max_grade_limit})", "max_grade"))
+    if a.angles_with_throttle_deg is not None:
+        thr = a.angles_with_throttle_deg
+        out.append(f"With the throttle ({a.accel_g:+g} g): " + ", ".join(
+            f"{short} {'-' if thr[key] is None else f'{thr[key]:.2f}'}" for short, key in THROTTLE_SHORT))
+    out.extend(slip_lines(a))
     out.append("")
     out.append(f"Verdict at the setup's slope ({a.setup.terrain.slope_deg:g} deg):")
     view = status_view(a, Units(ascii_only=True))
     for text in (view.flag,) + view.lines:
         out.append(f"  {text}")
     out.append("")
-    load = "steady climb" if a.load == "climb" else "no load"
-    out.append(f"Load table ({load}; forces in g, + up-slope):")
-    out.append(f"{'slope':>6} {'N front':>8} {'N rear':>8} {'needed':>8} {'F front':>8} {'F rear':>8}"
-               f" {'wind-up':>8} {'reserve':>8}  state")
+    how = "steady climb" if not a.accel_g else f"climb with {a.accel_g:+g} g throttle"
+    out.append(f"Load table ({how}; forces in g, + up-slope; grip used in % of mu_s N):")
+    out.append(f"{'slope':>6} {'N front':>7} {'N rear':>7} {'needed':>7} {'F front':>7} {'F rear':>7}"
+               f" {'wind-up':>7} {'grip f':>6} {'grip r':>6}  state")
     s, t = a.sweep, a.sweep.traction
     slipping = s.slipping
     for i, slope in enumerate(s.slope_deg):
-        out.append(f"{slope:>6.1f} {table_cell(s.front_normal_g[i])} {table_cell(s.rear_normal_g[i])} {table_cell(s.required_g[i])}"
-                   f" {table_cell(t.front_force_g[i])} {table_cell(t.rear_force_g[i])} {table_cell(t.windup_g[i])}"
-                   f" {table_cell(t.reserve_g[i])}  {slipping[i]}")
+        out.append(f"{slope:>6.1f} {table_cell(s.front_normal_g[i], 7)} {table_cell(s.rear_normal_g[i], 7)}"
+                   f" {table_cell(s.required_g[i], 7)} {table_cell(t.front_force_g[i], 7)}"
+                   f" {table_cell(t.rear_force_g[i], 7)} {table_cell(t.windup_g[i], 7)}"
+                   f" {table_cell(100 * t.front_grip_used[i], 6)} {table_cell(100 * t.rear_grip_used[i], 6)}"
+                   f"  {WORDS[slipping[i]]}")
     out.append("")
-    out.append("Static model: driveline wind-up loads gears, shafts and motors. Check on the bench, hands clear.")
+    out.append("Static model: driveline wind-up loads gears, shafts and motors. Check on the bench, hands clear;")
+    out.append("unwind the driveline (roll back a little) between ramp runs. Follow your venue's rules.")
     return "\n".join(out)
 
 
@@ -158,7 +190,10 @@ def run(args) -> int:
     if args.accel is not None and not (math.isfinite(args.accel) and -2.0 <= args.accel <= 2.0):
         raise SetupError(f"--accel {args.accel:g}: must be a number from -2 to 2 [g]", "command line")
     slopes = slope_range(args.start, args.stop, args.step)
-    a = analyse(loaded.setup, slopes, accel_g=args.accel, load=args.load)
+    if args.load is not None:
+        print("slopetune: warning: --load is retired and ignored: results are for a climb under load"
+              " (the weight-only handover is shown as a rule of thumb)", file=sys.stderr)
+    a = analyse(loaded.setup, slopes, accel_g=args.accel)
     if args.json:
         json.dump(report_dict(a), sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")

@@ -44,7 +44,7 @@ LEVER_WORDS = {
 LIMIT_UNITS = {"ballast": "g", "move": "mm", "cg-height": "mm", "overdrive": "%", "mu": "mu"}
 ANGLE_CHOICES = {
     "handover": "handover (climb)",
-    "handover_no_load": "handover (no load)",
+    "handover_weight_only": "handover, weight-only rule",
     "balance": "balance",
     "max_grade": "max grade",
     "front_lift": "front lift",

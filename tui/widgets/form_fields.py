@@ -9,6 +9,7 @@ numeric check goes through `engine.check_value`, the same rules the file loader 
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 from typing import NamedTuple, Optional
 
@@ -19,10 +20,12 @@ from ..units import Units
 
 # Fine steps per quantity, metric; the coarse step is ten of them.
 STEPS = {"mass": 5.0, "length": 1.0, "pct": 0.5, "deg": 1.0, "mu": 0.05, "rr": 0.01, "teeth": 1, "accel": 0.05,
-         "heading": 5.0}
+         "heading": 5.0, "stiff": 1.0, "loss": 0.05}
 COARSE = 10
-LOAD_CHOICES = ("climb", "none")
-LOAD_WORDS = {"climb": "steady climb", "none": "coast, no load"}  # 14 cells: fits the form
+# An optional key shows, and steps from, the value it falls back to while it is unset.
+FALLBACK = {"rig.rolling_dia_front_mm": "rig.tire_dia_front_mm", "rig.rolling_dia_rear_mm": "rig.tire_dia_rear_mm",
+            "grip.front_slip_stiffness": "grip.slip_stiffness", "grip.rear_slip_stiffness": "grip.slip_stiffness"}
+RIGID_WORDS = ("rigid", "inf")  # typed into a slip stiffness: the rigid-driveline rule
 DRIVE_WORDS = {False: "overdrive %", True: "gear stages"}
 # Stages offered when switching from a percentage: a one-stage pair whose ratio gives it.
 _STAGE_BASE_TEETH = 40
@@ -31,7 +34,7 @@ _STAGE_BASE_TEETH = 40
 class Row(NamedTuple):
     """One line of the form.
 
-    kind: "heading", "number", "text", "load", "drive_mode", "add_ballast", "add_stage", "info",
+    kind: "heading", "number", "text", "drive_mode", "add_ballast", "add_stage", "info",
     "derived" (the rig with its ballast, shown, not edited).
     `key` is the setup's dotted key for values (for "derived", the name of the figure); `quantity`
     picks unit and step.
@@ -74,7 +77,6 @@ def build_rows(setup: Setup) -> list[Row]:
             Row("number", "slope", "terrain.slope_deg", "deg"),
             Row("number", "heading", "terrain.heading_deg", "heading"),
             Row("number", "throttle accel", "terrain.accel_g", "accel"),
-            Row("load", "load", "terrain.load"),
             Row("heading", "Rig"),
             Row("number", "mass", "rig.mass_g", "mass"),
             Row("number", "wheelbase", "rig.wheelbase_mm", "length"),
@@ -83,6 +85,10 @@ def build_rows(setup: Setup) -> list[Row]:
             Row("number", "track", "rig.track_mm", "length"),
             Row("number", "front tyre dia", "rig.tire_dia_front_mm", "length"),
             Row("number", "rear tyre dia", "rig.tire_dia_rear_mm", "length"),
+            Row("number", "front roll-out", "rig.rolling_dia_front_mm", "length", optional=True),
+            Row("number", "rear roll-out", "rig.rolling_dia_rear_mm", "length", optional=True),
+            Row("number", "front loss/100g", "rig.rolling_dia_loss_front_mm_per_100g", "loss"),
+            Row("number", "rear loss/100g", "rig.rolling_dia_loss_rear_mm_per_100g", "loss"),
             # what every figure is computed for: the measured rig with its ballast
             Row("derived", "= with ballast", "mass_g", "mass"),
             Row("derived", "  front bias", "front_bias_pct", "pct"),
@@ -117,7 +123,10 @@ def build_rows(setup: Setup) -> list[Row]:
              Row("number", "front mu stat", "grip.front_mu_static", "mu", optional=True),
              Row("number", "front mu kin", "grip.front_mu_kinetic", "mu", optional=True),
              Row("number", "rear mu stat", "grip.rear_mu_static", "mu", optional=True),
-             Row("number", "rear mu kin", "grip.rear_mu_kinetic", "mu", optional=True)]
+             Row("number", "rear mu kin", "grip.rear_mu_kinetic", "mu", optional=True),
+             Row("number", "slip stiffness", "grip.slip_stiffness", "stiff"),
+             Row("number", "front slip stiff", "grip.front_slip_stiffness", "stiff", optional=True),
+             Row("number", "rear slip stiff", "grip.rear_slip_stiffness", "stiff", optional=True)]
     if setup.course is not None:
         rows += [Row("heading", "Course"),
                  Row("info", "course", "course.name"),
@@ -127,7 +136,9 @@ def build_rows(setup: Setup) -> list[Row]:
 
 
 def common_key(key: str) -> Optional[str]:
-    """The common grip key an axle override falls back to ("grip.front_mu_static" -> "grip.mu_static")."""
+    """The key an unset optional key falls back to ("grip.front_mu_static" -> "grip.mu_static")."""
+    if key in FALLBACK:
+        return FALLBACK[key]
     for side in ("front_", "rear_"):
         if key.startswith("grip." + side):
             return "grip." + key[len("grip." + side):]
@@ -183,18 +194,14 @@ def _round(value: float) -> float:
 
 def step(setup: Setup, row: Row, count: int) -> Edit:
     """Move the value of `row` by `count` fine steps (negative: down)."""
-    if row.kind == "load":
-        if count == 0:
-            return Edit(setup)
-        current = LOAD_CHOICES.index(setup.terrain.load)
-        choice = LOAD_CHOICES[(current + (1 if count > 0 else -1)) % len(LOAD_CHOICES)]
-        return Edit(setup.with_value("terrain.load", choice))
     if row.kind == "drive_mode":
         return toggle_drive_mode(setup)
     if row.kind != "number":
         return Edit(setup)
     old = effective_value(setup, row)
     size = STEPS[row.quantity]
+    if old == math.inf:  # a rigid tyre steps down from a very stiff one
+        old = 100.0 + size * max(count, 0)
     if row.quantity == "teeth":
         return _checked(setup, row.key, int(old) + int(size) * count)
     if row.quantity == "heading":  # round the circle: past +180 comes -175
@@ -210,6 +217,8 @@ def parse_typed(row: Row, text: str, units: Units):
         return text, None
     if not text:
         return None, "type a number, Enter to set, Esc to cancel"
+    if row.quantity == "stiff" and text.lower() in RIGID_WORDS:
+        return math.inf, None
     try:
         shown = float(text)
     except ValueError:
@@ -301,7 +310,7 @@ def activate(setup: Setup, row: Row) -> Edit:
         return add_ballast(setup)
     if row.kind == "add_stage":
         return add_stage(setup, row)
-    if row.kind in ("drive_mode", "load"):
+    if row.kind == "drive_mode":
         return step(setup, row, 1)
     return Edit(setup)
 
@@ -311,15 +320,17 @@ def hint(row: Row, inherited: bool, typing: bool) -> Optional[str]:
     if typing:
         return "Enter sets, Esc cancels"
     if row.optional:
-        return "= common mu; step to set" if inherited else "Del: back to the common mu"
+        return "= fallback; step to set" if inherited else "Del: back to the fallback"
     if row.kind == "text":
         return "Enter to edit" + (", Del removes it" if row.removable else "")
     if row.removable:
         return "Del removes this " + ("item" if row.key.startswith("rig.ballast") else "stage")
     if row.kind in ("add_ballast", "add_stage"):
         return "Enter adds"
-    if row.kind in ("drive_mode", "load"):
+    if row.kind == "drive_mode":
         return "Left/Right or Enter switch"
+    if row.quantity == "stiff":
+        return 'type "rigid" for no tyre slip'
     return None
 
 
@@ -338,8 +349,6 @@ def shown_value(setup: Setup, row: Row, units: Units) -> tuple[str, str, bool]:
     if row.kind == "derived":
         value = round(with_ballast(setup)[row.key], units.decimals(row.quantity))
         return units.number(row.quantity, value), units.unit(row.quantity), False
-    if row.kind == "load":
-        return LOAD_WORDS[setup.terrain.load], "", False
     if row.kind == "drive_mode":
         return get_value(setup, row.key), "", False
     if row.kind in ("text", "info"):
@@ -349,4 +358,6 @@ def shown_value(setup: Setup, row: Row, units: Units) -> tuple[str, str, bool]:
     raw = get_value(setup, row.key)
     inherited = raw is None and row.optional
     value = effective_value(setup, row)
+    if value == math.inf:
+        return "rigid", "", inherited
     return units.number(row.quantity, value), units.unit(row.quantity), inherited

@@ -89,8 +89,7 @@ def chart_data(analysis: Analysis, units: Units, baseline: Optional[Analysis] = 
     slopes = analysis.sweep.slope_deg
     lo, hi = float(slopes.min()), float(slopes.max())
     a = analysis.angles_deg
-    key = "handover" if analysis.load == "climb" else "handover_no_load"
-    named = {"B": a.get("balance"), "H": a.get(key), "L": a.get("front_lift"), "N": a.get("rear_lift"),
+    named = {"B": a.get("balance"), "H": a.get("handover"), "L": a.get("front_lift"), "N": a.get("rear_lift"),
              "M": a.get("max_grade") if (a.get("max_grade") or 90.0) < 90.0 else None}  # 90: never ends
     marks = tuple((letter, round(v, 2)) for letter, v in named.items() if v is not None and lo <= v <= hi)
     return ChartData(current, base, float(analysis.setup.terrain.slope_deg), marks, units.unit("mass"),
