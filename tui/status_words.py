@@ -108,12 +108,12 @@ def flag_line(analysis: Analysis, slope_deg: float, units: Units,
 
 def _overdrive_line(analysis: Analysis, units: Units) -> str:
     od = analysis.overdrive
-    dia_f, dia_r = analysis.setup.rig.rolling_dia_mm()  # roll-out when measured: what the ground sees
-    tyres = f"{units.number('length', dia_f)}/{units.with_unit('length', dia_r)}"
+    # the tyres' share of the mismatch, from roll-out diameters when measured (what the ground sees)
+    tyres = ((1 + od.effective_pct / 100) / (1 + od.gear_pct / 100) - 1) * 100
+    parts = f"gears {od.gear_pct:+.1f}%, tyres {tyres:+.1f}%"
     if od.overdriven_axle is None:
-        return f"No overdrive, no wind-up (gears {od.gear_pct:+.1f}%, {tyres})"
-    return (f"{od.overdriven_axle.capitalize()} overdriven {abs(od.effective_pct):.1f}%"
-            f" (gears {od.gear_pct:+.1f}%, {tyres})")
+        return f"No overdrive ({parts})"
+    return f"{od.overdriven_axle.capitalize()} OD {abs(od.effective_pct):.1f}% ({parts})"
 
 
 def _here_line(analysis: Analysis, slope_deg: float, units: Units, here: Here) -> str:
@@ -145,8 +145,8 @@ def grip_line(here: Here) -> str:
         if used is None:
             continue
         what = "sliding" if slip is None else f"slip {slip:+.1f}%"
-        parts.append(f"{name} {100 * used:.0f}% ({what})")
-    text = "Grip used: " + ", ".join(parts)
+        parts.append(f"{name} {100 * used:.0f}% {what}")
+    text = "Grip " + ", ".join(parts)
     if here.windup_g is not None and here.state == "none" and abs(here.windup_g) >= 0.5:
         text += f"; wind-up {abs(here.windup_g):.0f} g"
     return text
@@ -157,9 +157,9 @@ def _handover_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
     od = analysis.overdrive
     if od.overdriven_axle is None:
         return "Handover: none (no overdrive)"
-    amount = f"{abs(od.effective_pct):.1f}% {od.overdriven_axle} overdrive"
+    amount = f"{abs(od.effective_pct):.1f}% OD"
     if h is None:
-        return f"Handover: none below the max grade at {amount}"
+        return f"Handover: none below max grade at {amount}"
     return f"Handover {units.angle(h)} at {amount}, " + _away(h, slope_deg, units, "up", "down")
 
 
@@ -172,17 +172,19 @@ def stiffness_text(c) -> str:
     return "rigid" if math.isinf(c) else f"{c:g}"
 
 
-def sensitivity_line(analysis: Analysis, units: Units) -> str:
-    """How the handover depends on the slip stiffness: softer, stiffer and rigid tyres."""
-    g = analysis.setup.grip
-    own = stiffness_text(g.axle_stiffness() if g.front_slip_stiffness or g.rear_slip_stiffness
-                         else g.slip_stiffness)
+def sensitivity_line(analysis: Analysis, units: Units) -> Optional[str]:
+    """How the handover depends on the slip stiffness: softer, stiffer and rigid tyres (None with
+    no overdrive: there is no handover to move)."""
+    if analysis.overdrive.overdriven_axle is None:
+        return None
     parts = []
     for label, (c, ang) in analysis.stiffness_sensitivity().items():
         h = ang["handover"]
-        name = "rigid" if label == "rigid" else f"c {stiffness_text(c)}"
-        parts.append(f"{name} {'none' if h is None else units.angle(h)}")
-    return f"Handover vs slip stiffness (yours {own}): " + ", ".join(parts)
+        name = "rigid" if label == "rigid" else f"c={stiffness_text(c)}"
+        parts.append(f"{name}: {'none' if h is None else units.angle(h)}")
+    if not parts:
+        return "Handover: rigid tyres, no slip (the worst case)"
+    return "Handover if " + ", ".join(parts)
 
 
 def scrub_band_line(analysis: Analysis, units: Units) -> Optional[str]:
@@ -197,11 +199,7 @@ def scrub_band_line(analysis: Analysis, units: Units) -> Optional[str]:
 
 def slip_lines(analysis: Analysis, units: Units = Units(ascii_only=True)) -> list[str]:
     """The tyre-slip figures of a report: stiffness sensitivity and scrub persistence."""
-    out = [sensitivity_line(analysis, units)]
-    band = scrub_band_line(analysis, units)
-    if band:
-        out.append(band)
-    return out
+    return [line for line in (sensitivity_line(analysis, units), scrub_band_line(analysis, units)) if line]
 
 
 def _max_grade_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
@@ -250,14 +248,15 @@ def status_view(analysis: Analysis, units: Units, baseline: Optional[Analysis] =
     slope = float(analysis.setup.terrain.slope_deg)
     here = here_at(analysis, slope)
     level, flag = flag_line(analysis, slope, units, here)
-    lines = (
+    lines = tuple(line for line in (
         _overdrive_line(analysis, units),
         _here_line(analysis, slope, units, here),
         grip_line(here),
         _handover_line(analysis, slope, units),
+        sensitivity_line(analysis, units),
         _max_grade_line(analysis, slope, units),
         _lift_line(analysis, slope, units),
         _sidehill_line(analysis, units),
-    )
+    ) if line is not None)
     compare = compare_line(analysis, baseline, units) if baseline is not None else None
     return StatusView(level, flag, lines, compare)
