@@ -49,6 +49,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .contact_rigid import BINDS, contact_columns, load_vector, solve_rigid
+from .overdrive import SAME_SPEED_TOL
 from .traction import BOTH, FRONT, LIFTED, NONE, REAR, RIGID_STAND_IN
 from .tyre_brush import brush_psi, brush_psi_inverse
 
@@ -215,7 +216,8 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     af, ar, pitch = (np.asarray(a, dtype=float) for a in (front_angle_deg, rear_angle_deg, pitch_deg))
     k, q, rho = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in (speed_ratio, pitch_term, path_ratio)))
     mismatch = (k + q) / rho  # s_f/s_r at pure rolling of the rear
-    fast_sign = np.sign(np.round(mismatch - 1.0, 12))
+    # below SAME_SPEED_TOL the mismatch is rounding noise, as on a uniform slope
+    fast_sign = np.where(np.abs(mismatch - 1.0) <= SAME_SPEED_TOL, 0.0, np.sign(mismatch - 1.0))
     if math.isinf(stiffness_front) and math.isinf(stiffness_rear):
         cols = contact_columns(pf - cg, pr - cg, af, ar, rolling_resistance)
         rhs = load_vector(weight_g, pitch, accel_g)

@@ -38,6 +38,7 @@ import numpy as np
 
 from .analysis import effective_rig, setup_overdrive
 from .contact_rigid import BINDS
+from .overdrive import SAME_SPEED_TOL
 from .contact_statics import ContactLoads, CourseTraction, solve_contacts
 from .course_geometry import RigPose, concat_poses, place_rig, rig_paths, vertices_within
 from .setup_file import SetupError
@@ -125,7 +126,7 @@ class CourseWalk:
 
 
 def _fast_name(mismatch: float) -> Optional[str]:
-    if not math.isfinite(mismatch) or abs(mismatch - 1.0) <= 1e-12:
+    if not math.isfinite(mismatch) or abs(mismatch - 1.0) <= SAME_SPEED_TOL:
         return None
     return "front" if mismatch > 1.0 else "rear"
 
@@ -363,7 +364,8 @@ def find_events(state, front_normal_g, rear_normal_g, belly_touch, rear_x_mm, fr
 
     grounded = np.flatnonzero((lift == 0) & ~outside & (state != LIFTED))
     mismatch = np.asarray(mismatch, dtype=float)
-    fast = np.where(np.isfinite(mismatch), np.sign(np.round(mismatch - 1.0, 12)), 0).astype(int)
+    fast = np.where(np.isfinite(mismatch) & (np.abs(mismatch - 1.0) > SAME_SPEED_TOL),
+                    np.sign(mismatch - 1.0), 0).astype(int)
     names = {1: "front", -1: "rear", 0: None}
     g_fast, g_state = fast[grounded], state[grounded]
     flips = (g_fast[1:] != g_fast[:-1]) & (g_fast[1:] != 0) & (g_fast[:-1] != 0)

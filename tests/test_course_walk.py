@@ -28,7 +28,7 @@ from slopetune.engine.course_walk import walk_course
 from slopetune.engine.traction import BOTH, FRONT, LIFTED, REAR
 from slopetune.tui.cli import main
 
-from conftest import rig_setups
+from conftest import rig_setups, rigid_tyres
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMOS = sorted((ROOT / "setups").glob("course-*.toml"))
@@ -75,7 +75,7 @@ def test_crest_front_on_flat_rear_on_a_steep_face():
     """Rear wheel on a 50° face, front on the flat top (a crest): the forces satisfy Σx, Σz and
     Σ moments about the CG (Meriam & Kraige ch. 3), the slipping axle carries μ_k N and the
     gripping one stays within μ_s N (Serway & Beichner ch. 5)."""
-    setup = load_setup(ROOT / "setups" / "marmot-overdrive.toml").setup
+    setup = rigid_tyres(load_setup(ROOT / "setups" / "marmot-overdrive.toml").setup)  # Coulomb limits
     face = 50.0
     top = 300.0 * math.tan(math.radians(face))
     setup = _with_course(setup, [[0.0, 0.0], [400.0, 0.0], [700.0, top], [1500.0, top]])
@@ -168,7 +168,7 @@ def test_kestrel_knuckle_states_worked_by_hand():
     - face, atan(314/220) = 55.0°: even all the grip, at most 1.05 W cos θ, is short of
       W (sin θ + 0.03 cos θ), since tan 55° = 1.43 > 1.02: both slip ("cannot_hold" before it).
     """
-    setup = load_setup(RIG).setup
+    setup = rigid_tyres(load_setup(RIG).setup)  # worked by hand with the rigid rule on the tyre diameters
     walk = walk_course(setup, 5.0, course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
     p = walk.pose
     face, ramp = math.degrees(math.atan2(314, 220)), math.degrees(math.atan2(213, 400))
