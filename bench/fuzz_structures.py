@@ -394,7 +394,7 @@ wide = st.sampled_from([1e3, 1e6, 1e9, 1e300])
 
 @st.composite
 def planner_cases(draw):
-    return (draw(st.integers(0, 1)), draw(st.sampled_from(["balance", "front_lift", "max_grade", "handover_no_load"])),
+    return (draw(st.integers(0, 1)), draw(st.sampled_from(["balance", "front_lift", "max_grade", "handover_weight_only"])),
             draw(st.floats(-5.0, 5.0)), draw(st.sampled_from(["ballast", "cg", "overdrive", "mu"])), draw(wide))
 
 

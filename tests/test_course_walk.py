@@ -306,7 +306,7 @@ def test_kestrel_ramp_foot_kinematics_worked_by_hand():
     overdriven by its gears, is kinematically underdriven here, so the rear is the faster axle
     (the walk before the path ratio called this stretch a handover to the front). At x = 300:
     ψ = 20.80°, ρ = 0.9423, s_f/s_r = 1.1418: the front is the faster axle."""
-    setup = load_setup(RIG).setup
+    setup = rigid_tyres(load_setup(RIG).setup)  # tyre diameters: K = 1.07143 as worked above
     walk = walk_course(setup, rear_x_mm=[100.0, 300.0],
                        course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
     alpha = math.atan2(213.0, 400.0)

@@ -30,7 +30,8 @@ def _type_lifts(lifts: str, level: str = "1000", slide: str | None = None):
             screen.query_one("#m-slide", Input).value = slide
         await pilot.pause(0.3)  # the sums wait for typing to settle
         out = {
-            "text": screen_text(pilot.app),
+            # every text of the screen, shown or scrolled out of the 80x24 view
+            "text": " ".join(str(w.render()) for w in screen.query(Static)),
             "check": str(screen.query_one("#cg_height_mm-check", Static).render()),
             "why": str(screen.query_one("#m-lifts-why", Static).render()),
             "result": str(screen.query_one("#cg_height_mm-result", Static).render()),

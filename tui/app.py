@@ -41,7 +41,7 @@ from .widgets.load_chart import LoadChart, chart_data
 from .widgets.setup_form import SetupForm
 from .widgets.status_pane import FlagLine, StatusPane
 from .widgets.title_bar import TitleBar
-from .units import Units
+from .units import Units, plain_scrollbars
 
 if TYPE_CHECKING:
     import numpy as np
@@ -138,6 +138,8 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         self.setup = loaded.setup
         self.saved_setup = loaded.setup
         self.units = Units(imperial=False, ascii_only=ascii_only)
+        if ascii_only:
+            plain_scrollbars()
         self.full_range = False
         self.baseline: Optional[Baseline] = (
             Baseline(baseline.setup, baseline.path.name if baseline.path else "baseline") if baseline else None)

@@ -47,7 +47,7 @@ def target_for(analysis: Analysis):
     from slopetune.engine.goal_seek import Target
 
     slope = float(analysis.setup.terrain.slope_deg)
-    here, axle = here_at(analysis, slope)
+    here, axle = here_at(analysis, slope)[:2]
     if here == "lifted":
         return Target("front_lift", ">=", round(slope + MARGIN_DEG, 1)) if axle == "front" else None
     if here == "both":
@@ -55,7 +55,7 @@ def target_for(analysis: Analysis):
     fast = analysis.overdrive.overdriven_axle
     if fast is None:
         return None
-    name = "handover" if analysis.load == "climb" else "handover_no_load"
+    name = "handover"  # the named figure: a steady climb
     handover = analysis.angles_deg.get(name)
     need = slope + LOOKAHEAD_DEG + MARGIN_DEG
     if handover is not None and handover >= need:

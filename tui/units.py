@@ -107,3 +107,12 @@ def fmt_number(value: float, decimals: int) -> str:
     if text in ("-0", "-0.0", "-0.00", "-0.000"):
         text = text[1:]
     return text
+
+
+def plain_scrollbars() -> None:
+    """Scrollbars drawn with spaces and colour only: Textual's eighth-block thumbs exist in no Linux
+    console font, so an ASCII display would show them as junk (TUI notes: console fonts)."""
+    from textual.scrollbar import ScrollBarRender
+
+    ScrollBarRender.VERTICAL_BARS = [" "] * len(ScrollBarRender.VERTICAL_BARS)
+    ScrollBarRender.HORIZONTAL_BARS = [" "] * len(ScrollBarRender.HORIZONTAL_BARS)

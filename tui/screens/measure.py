@@ -24,6 +24,8 @@ from slopetune.engine.measure import (
 )
 from slopetune.engine.setup_model import cross_field_problems, rule_for
 
+from ..units import plain_scrollbars
+
 # Words from files and setups may hold brackets: never read them as markup.
 Plain = partial(Static, markup=False)
 
@@ -181,6 +183,8 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
 
     def on_mount(self) -> None:
         self.set_class(self._ascii(), "-ascii")
+        if self._ascii():
+            plain_scrollbars()  # the screen scrolls now that it holds the slip tests
         self.query_one("#m-lifts", Input).placeholder = "e.g. 30:1420, 60:1475"
         self._recompute()
         self.query_one("#m-front", Input).focus()
