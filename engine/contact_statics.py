@@ -217,7 +217,7 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     k, q, rho = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in (speed_ratio, pitch_term, path_ratio)))
     mismatch = (k + q) / rho  # s_f/s_r at pure rolling of the rear
     # below SAME_SPEED_TOL the mismatch is rounding noise, as on a uniform slope
-    fast_sign = np.where(np.abs(mismatch - 1.0) <= SAME_SPEED_TOL, 0.0, np.sign(mismatch - 1.0))
+    fast_sign = np.where(np.abs(mismatch - 1.0) <= SAME_SPEED_TOL, 0, np.sign(mismatch - 1.0)).astype(int)
     if math.isinf(stiffness_front) and math.isinf(stiffness_rear):
         cols = contact_columns(pf - cg, pr - cg, af, ar, rolling_resistance)
         rhs = load_vector(weight_g, pitch, accel_g)

@@ -89,6 +89,8 @@ def build_rows(setup: Setup) -> list[Row]:
             Row("number", "rear roll-out", "rig.rolling_dia_rear_mm", "length", optional=True),
             Row("number", "front loss/100g", "rig.rolling_dia_loss_front_mm_per_100g", "loss"),
             Row("number", "rear loss/100g", "rig.rolling_dia_loss_rear_mm_per_100g", "loss"),
+            # unset: the roll moment splits by axle load (MODEL section 8)
+            Row("number", "roll share front", "rig.roll_stiffness_front_pct", "pct", optional=True),
             # what every figure is computed for: the measured rig with its ballast
             Row("derived", "= with ballast", "mass_g", "mass"),
             Row("derived", "  front bias", "front_bias_pct", "pct"),
@@ -156,7 +158,8 @@ def effective_value(setup: Setup, row: Row):
     """The value that computes: an unset axle override shows the common value."""
     value = get_value(setup, row.key)
     if value is None and row.optional:
-        return setup.value(common_key(row.key))
+        common = common_key(row.key)
+        return None if common is None else setup.value(common)  # None: no fallback key
     return value
 
 
@@ -202,6 +205,8 @@ def step(setup: Setup, row: Row, count: int) -> Edit:
     size = STEPS[row.quantity]
     if old == math.inf:  # a rigid tyre steps down from a very stiff one
         old = 100.0 + size * max(count, 0)
+    if old is None:  # an unset share with no fallback starts from an even split
+        old = 50.0 - size * count
     if row.quantity == "teeth":
         return _checked(setup, row.key, int(old) + int(size) * count)
     if row.quantity == "heading":  # round the circle: past +180 comes -175
@@ -358,6 +363,8 @@ def shown_value(setup: Setup, row: Row, units: Units) -> tuple[str, str, bool]:
     raw = get_value(setup, row.key)
     inherited = raw is None and row.optional
     value = effective_value(setup, row)
+    if value is None:
+        return "by load", "", inherited
     if value == math.inf:
         return "rigid", "", inherited
     return units.number(row.quantity, value), units.unit(row.quantity), inherited
