@@ -314,7 +314,8 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
     @on(SetupForm.Edited)
     def _edited(self, message: SetupForm.Edited) -> None:
         """The form changed the setup: recompute and redraw."""
-        self.history.record(self.setup, message.setup, message.key.split(".")[-1], key=message.key)
+        what = self.form.row.label.strip() if self.form.row.key == message.key else message.key
+        self.history.record(self.setup, message.setup, what, key=message.key)
         self.setup = message.setup
         if self.status.note[1] != "error":
             self._note("")  # a note has been read by the next key; give its room back to the chart

@@ -283,7 +283,8 @@ class SetupForm(ScrollView, can_focus=True, inherit_bindings=False):
         room = max(width - label_w - 1, 4)
         if v.editing is not None:
             editing = one_line(v.editing)  # file text: control and bidi characters spelled out
-            typed = editing[-(room - 2):] if room > 3 else editing
+            # typed text shows its end (where the next key goes); the offered old value its start
+            typed = (editing[:room - 1] if v.fresh else editing[-(room - 2):]) if room > 3 else editing
             # the old value, offered to be replaced, shows reversed (a selection) without colour too
             text.append(typed, style("setup-form--edit") + (Style(reverse=True) if v.fresh else Style()))
             text.append("_", style("setup-form--edit"))
