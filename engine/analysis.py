@@ -30,7 +30,7 @@ from .overdrive import (
 from .setup_model import Setup
 from .slope_angles import named_climb_angles, saturation_weights, weight_only_handover_deg
 from .traction import (
-    FRONT, REAR, RIGID_STAND_IN, STATES, TractionState, required_force_g, slip_traction_state,
+    BOTH, FRONT, LIFTED, REAR, RIGID_STAND_IN, STATES, TractionState, required_force_g, slip_traction_state,
 )
 
 
@@ -215,9 +215,26 @@ class _Model:
 
     def sweep(self, slope_deg) -> Sweep:
         slopes = np.asarray(slope_deg, dtype=float)
+        if self.setup.terrain.heading_deg % 360.0 != 0.0:
+            return self._sweep_along_heading(slopes)
         nf, nr = self.loads(slopes)
         f_req = self.required(slopes)
         return Sweep(slopes, nf, nr, f_req, self._solve(nf, nr, f_req), self.ratio(nf, nr))
+
+    def _sweep_along_heading(self, slopes) -> Sweep:
+        """Off-camber hook (MODEL section 8; `off_camber.along_heading`): the sweep rows run along
+        the file's heading, with the friction the friction circle leaves, a sideways slide as
+        ``both`` and a roll over the side as ``lifted``. The named angles stay straight up."""
+        from .off_camber import along_heading
+
+        r = self.rig
+        a = along_heading(r.mass_g, r.wheelbase_mm, r.cg_from_rear_mm, r.cg_height_mm, r.track_mm, slopes,
+                          self.setup.terrain.heading_deg, self.crr, self.accel, self.mu_f, self.mu_r)
+        ratio = self.ratio(a.front_g, a.rear_g)
+        cf, cr = self.stiffness
+        ts = slip_traction_state(a.front_g, a.rear_g, a.required_g, a.mu_front, a.mu_rear, cf, cr, ratio)
+        return Sweep(slopes, a.front_g, a.rear_g, a.required_g,
+                     replace(ts, state=a.state_codes(ts.state, (FRONT, REAR, BOTH, LIFTED))), ratio)
 
     def boundary_weights(self):
         """(α, β, γ) of every function ``α N_f + β N_r + γ F_req`` whose zeros can separate two
