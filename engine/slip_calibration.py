@@ -72,8 +72,8 @@ def slip_test(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, rolling_res
         ``c_rr``. [-]
     mu_static : float
         Static friction of the driving axle. [-]
-    rolling_dia_mm : float
-        Free roll-out diameter of the driving axle's tyres at the same load. [mm]
+    rolling_dia_mm : array_like
+        Free roll-out diameter of the driving axle's tyres at the load of each run. [mm]
     slope_deg, turns, distance_mm : array_like
         Each run: board angle [deg], tyre turns counted [-], distance travelled [mm].
     axle : {"rear", "front"}
@@ -86,12 +86,13 @@ def slip_test(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, rolling_res
     theta = np.atleast_1d(np.asarray(slope_deg, dtype=float))
     n = np.atleast_1d(np.asarray(turns, dtype=float))
     x = np.atleast_1d(np.asarray(distance_mm, dtype=float))
-    theta, n, x = np.broadcast_arrays(theta, n, x)
+    dia = np.atleast_1d(np.asarray(rolling_dia_mm, dtype=float))
+    theta, n, x, dia = np.broadcast_arrays(theta, n, x, dia)
     front, rear = axle_loads_g(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, theta)
     normal = np.asarray(rear if axle == "rear" else front, dtype=float)
     th = np.radians(theta)
     force = weight_g * (np.sin(th) + rolling_resistance * np.cos(th))
-    sigma = 1.0 - x / (n * math.pi * rolling_dia_mm)
+    sigma = 1.0 - x / (n * math.pi * dia)
     with np.errstate(divide="ignore", invalid="ignore"):
         used = force / (mu_static * normal)
         lam = brush_psi_inverse(used)
@@ -99,7 +100,7 @@ def slip_test(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, rolling_res
     floor = 3.0 * mu_static
     problems = []
     for i in range(theta.size):
-        rollout = n[i] * math.pi * rolling_dia_mm
+        rollout = n[i] * math.pi * dia[i]
         if not normal[i] > 0:
             problems.append((i, f"at {theta[i]:g} deg the {axle} axle is off the ground"))
         elif not force[i] > 0:
@@ -126,6 +127,25 @@ def slip_test(weight_g, wheelbase_mm, cg_from_rear_mm, cg_height_mm, rolling_res
         fit = float("nan")
     return SlipTestRuns(sigma=sigma, force_g=force, normal_g=normal, grip_used=used, stiffness=stiffness,
                         stiffness_fit=fit, floor=floor, problems=problems)
+
+
+def board_rolling_dia_mm(setup, axle: str, slope_deg):
+    """Roll-out diameter of one axle's tyres at that axle's load on the board (MODEL section 4). [mm]
+
+    The file's level roll-out diameter (its tyre diameter when it has none) less its loss per 100 g
+    more load on that axle; the slip test needs the roll-out "at the same axle load" as the run.
+    """
+    from .ballast import combine_ballast
+    from .overdrive import rolling_dia_under_load_mm
+
+    rig = setup.rig
+    weight, b, h = combine_ballast(rig)
+    level_front, level_rear = axle_loads_g(weight, rig.wheelbase_mm, b, h, 0.0)
+    front, rear = axle_loads_g(weight, rig.wheelbase_mm, b, h, np.atleast_1d(np.asarray(slope_deg, float)))
+    i = 0 if axle == "front" else 1
+    return rolling_dia_under_load_mm(rig.rolling_dia_mm()[i], getattr(rig, f"rolling_dia_loss_{axle}_mm_per_100g"),
+                                     (front, rear)[i], float((level_front, level_rear)[i]),
+                                     getattr(rig, f"tire_dia_{axle}_mm"))
 
 
 # ---------------------------------------------------------------------------- ramp test
@@ -305,4 +325,4 @@ def _no_fit(reading, tol, rigid_h, latest, max_grade) -> str:
             "after which the rig never scrubs")
 
 
-__all__ = ["SlipTestRuns", "StiffnessRange", "handover_range", "one_stiffness", "slip_test", "stiffness_range"]
+__all__ = ["SlipTestRuns", "StiffnessRange", "board_rolling_dia_mm", "handover_range", "one_stiffness", "slip_test", "stiffness_range"]

@@ -165,3 +165,22 @@ def test_cli_slip_test_refuses_a_run_that_shows_no_slip(tmp_path, capsys):
     _, err = capsys.readouterr()
     assert code == 2 and err.count("\n") == 1 and "--run 10:10:3200" in err and "no slip shows" in err
 
+
+
+# ---- ramp test through the analysis: round trip -----------------------------------------------
+
+
+@pytest.mark.parametrize("c_true", [19.0, 40.0])
+def test_ramp_round_trip_a_handover_gives_back_a_range_holding_its_c(c_true):
+    # The handover the analysis gives at c_true, read as a ramp test would (to 0.1 deg), must give a
+    # range of c that holds c_true: the calibration inverts the analysis it is built on.
+    from pathlib import Path
+
+    from slopetune.engine import analyse, load_setup
+    from slopetune.engine.slip_calibration import handover_range, one_stiffness
+
+    setup = load_setup(Path(__file__).resolve().parents[1] / "setups" / "marmot-overdrive.toml").setup
+    seen = round(analyse(one_stiffness(setup, c_true)).angles_deg["handover"], 1)
+    found = handover_range(setup, seen)
+    assert found.fits and found.low <= c_true <= found.high, (seen, found)
+    assert math.isfinite(found.high) and found.exact == pytest.approx(c_true, rel=0.02)

@@ -11,9 +11,11 @@ import json
 import math
 import sys
 
+import numpy as np
+
 from slopetune.engine import load_setup
 from slopetune.engine.ballast import combine_ballast
-from slopetune.engine.slip_calibration import handover_range, slip_test
+from slopetune.engine.slip_calibration import board_rolling_dia_mm, handover_range, slip_test
 
 from ._args import ArgumentRefused, number
 
@@ -45,7 +47,10 @@ better (--run DEG:TURNS:MM, repeated; they are combined by least squares).
 
 Roll-out: both driveshafts out, roll the rig 5-10 turns on the bench, travel / (turns pi).
 The rig, mu_s, c_rr and D come from --from FILE (or the --write file); --dia overrides D.
-It does not depend on the overdrive or on wind-up. Keep hands clear of the wheels on the board.
+It does not depend on the overdrive or on wind-up. The slip is small (a few %): measure the
+roll-out carefully (10 turns, to 1 mm), as 0.1 % in D moves c by several %. The file's roll-out is
+taken at the axle's load on the board (its loss per 100 g, model section 4).
+Keep hands clear of the wheels on the board.
 """
 
 STIFFNESS_DIGITS = 1  # c to 0.1: a tape read to 5 mm over 3 m moves a 4 % slip by about 4 %
@@ -128,6 +133,12 @@ def run_ramp(args) -> int:
     if args.write:
         if value is None:
             raise ArgumentRefused(f"--write: nothing written: {found.words}")
+        per_axle = [k for k in ("front_slip_stiffness", "rear_slip_stiffness")
+                    if getattr(loaded.setup.grip, k, None) is not None]
+        if per_axle:  # they would override the one c the ramp fits for both axles
+            raise ArgumentRefused(f"--write: nothing written: {args.file} sets grip.{per_axle[0]}, which would "
+                                  "override it; the ramp fits one c for both axles (remove those keys, or "
+                                  "use the slip test per axle)")
         set_keys(args.file, {"grip.slip_stiffness": value})
         if not args.json:
             print(f"wrote grip.slip_stiffness = {value:g} to {args.file}")
@@ -148,18 +159,16 @@ def run_test(args) -> int:
     weight, b, h = combine_ballast(setup.rig)
     fs, _fk, rs, _rk = setup.grip.axle_mu()
     mu = rs if args.axle == "rear" else fs
-    if args.dia is not None:
-        dia = args.dia
-    else:
-        rolling = getattr(setup.rig, "rolling_dia_mm", None)
-        dia = (rolling()[0 if args.axle == "front" else 1] if rolling is not None else
-               getattr(setup.rig, f"tire_dia_{args.axle}_mm"))
-    if not 1.0 <= dia <= 1e4:
-        raise ArgumentRefused(f"--dia {dia:g}: must be at least 1 and at most 10000 [mm]")
     for deg, turns, mm in args.run:
         if not 0 < deg < 90 or not 0 < turns <= 1e4 or not 0 < mm <= 1e7:
             raise ArgumentRefused(f"--run {deg:g}:{turns:g}:{mm:g}: give an angle above 0 and below 90 deg, "
                                   "turns above 0, a distance above 0 mm")
+    if args.dia is not None:
+        if not 1.0 <= args.dia <= 1e4:
+            raise ArgumentRefused(f"--dia {args.dia:g}: must be at least 1 and at most 10000 [mm]")
+        dia = np.full(len(args.run), args.dia)
+    else:
+        dia = board_rolling_dia_mm(setup, args.axle, [r[0] for r in args.run])
     runs = slip_test(weight, setup.rig.wheelbase_mm, b, h, setup.grip.rolling_resistance, mu, dia,
                      [r[0] for r in args.run], [r[1] for r in args.run], [r[2] for r in args.run], axle=args.axle)
     if len(runs.problems) == len(args.run):
@@ -175,10 +184,11 @@ def run_test(args) -> int:
     other = "front" if args.axle == "rear" else "rear"
     n_used = len(args.run) - len(runs.problems)
     if args.json:
-        rows = [{"slope_deg": d, "turns": t, "distance_mm": x, "slip_pct": round(100 * float(runs.sigma[i]), 3),
+        rows = [{"slope_deg": d, "turns": t, "distance_mm": x, "rolling_dia_mm": round(float(dia[i]), 3),
+                 "slip_pct": round(100 * float(runs.sigma[i]), 3),
                  "grip_used": round(float(runs.grip_used[i]), 4), "slip_stiffness": _c(runs.stiffness[i])}
                 for i, (d, t, x) in enumerate(args.run)]
-        json.dump({"axle": args.axle, "slip_stiffness": value, "rolling_dia_mm": dia, "runs": rows}, sys.stdout,
+        json.dump({"axle": args.axle, "slip_stiffness": value, "runs": rows}, sys.stdout,
                   indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
@@ -186,11 +196,12 @@ def run_test(args) -> int:
               f"{other} driveshaft out)")
         for i, (d, t, x) in enumerate(args.run):
             if math.isfinite(runs.stiffness[i]):
-                print(f"  {d:g} deg: {t:g} turns over {x:g} mm of {t * math.pi * dia:.0f} mm roll-out: "
+                print(f"  {d:g} deg: {t:g} turns over {x:g} mm of {t * math.pi * dia[i]:.0f} mm roll-out: "
                       f"slip {100 * runs.sigma[i]:.1f} %, grip used {100 * runs.grip_used[i]:.0f} %, "
                       f"c {runs.stiffness[i]:.3g}")
-        print(f"  (the rig, mu_s {mu:g} and c_rr from {source.path}; roll-out diameter {dia:g} mm"
-              f"{'' if args.dia is None else ' as given'})")
+        how = "as given" if args.dia is not None else "from the file, at the axle's load on the board"
+        dias = ", ".join(f"{d:.1f}" for d in dict.fromkeys(np.round(dia, 1).tolist()))
+        print(f"  (the rig, mu_s {mu:g} and c_rr from {source.path}; roll-out diameter {dias} mm {how})")
     if args.write:
         set_keys(args.write, {key: value})
         if not args.json:

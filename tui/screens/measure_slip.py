@@ -19,7 +19,7 @@ from textual.widgets import Button, Input, Static
 
 from slopetune.engine import Setup
 from slopetune.engine.ballast import combine_ballast
-from slopetune.engine.slip_calibration import slip_test
+from slopetune.engine.slip_calibration import board_rolling_dia_mm, slip_test
 
 Plain = partial(Static, markup=False)
 
@@ -90,12 +90,10 @@ class SlipStiffnessForm(Vertical):
             yield Button(label, id=f"{stem}-apply", compact=True, classes="m-apply", disabled=True)
 
     def compose(self) -> ComposeResult:
-        rolling = getattr(self.setup.rig, "rolling_dia_mm", None)
-        dia = rolling()[1] if rolling is not None else self.setup.rig.tire_dia_rear_mm
         yield Plain("Slip stiffness c, slip test: one axle drives, count tyre turns", classes="m-heading")
         yield Plain(SLIP_TEST_HOW, classes="m-note")
         yield from self._field("m-slip-axle", "Driving axle", "rear", "", )
-        yield from self._field("m-slip-dia", "Roll-out diameter", f"{dia:g}", "mm")
+        yield from self._field("m-slip-dia", "Roll-out diameter", "", "mm")
         yield from self._field("m-slip-runs", "Runs", "", "", wide=True)
         yield from self._result("slip_test", "Apply c")
         yield Plain("Slip stiffness c, ramp test (a check): the handover on a board", classes="m-heading")
@@ -106,6 +104,7 @@ class SlipStiffnessForm(Vertical):
 
     def on_mount(self) -> None:
         self.query_one("#m-slip-runs", Input).placeholder = "deg:turns:mm, e.g. 10:8:2650"
+        self.query_one("#m-slip-dia", Input).placeholder = "the file's"
         self.query_one("#m-ramp", Input).placeholder = "deg, or none"
         self._slip_test()
         self._show("ramp", None, "c by ramp: needs the handover you saw")
@@ -135,14 +134,21 @@ class SlipStiffnessForm(Vertical):
         else:
             self._say("m-slip-axle", f"{'front' if axle == 'rear' else 'rear'} shaft out")
             self.query_one("#m-slip-axle-why", Static).set_class(False, "-bad")
-        try:
-            dia = float(self.query_one("#m-slip-dia", Input).value.strip().replace(",", "."))
-            if not 1.0 <= dia <= 1e4:
-                raise ValueError
+        typed = self.query_one("#m-slip-dia", Input).value.strip()
+        dia_ok = True
+        if typed:
+            try:
+                dia = float(typed.replace(",", "."))
+                if not 1.0 <= dia <= 1e4:
+                    raise ValueError
+                self._say("m-slip-dia", "")
+            except ValueError:
+                self._say("m-slip-dia", "a diameter, 1 to 10000")
+                dia_ok = False
+        else:
+            dia = None  # the file's roll-out at the axle's load on the board, per run
             self._say("m-slip-dia", "")
-        except ValueError:
-            self._say("m-slip-dia", "a diameter, 1 to 10000")
-            dia = None
+            self.query_one("#m-slip-dia-why", Static).update("at the axle's load on the board")
         text = self.query_one("#m-slip-runs", Input).value
         runs = None
         if text.strip():
@@ -157,9 +163,11 @@ class SlipStiffnessForm(Vertical):
                 runs = None
         else:
             self._say("m-slip-runs", "")
-        if axle is None or dia is None or runs is None:
+        if axle is None or not dia_ok or runs is None:
             self._show("slip_test", None, "c by slip test: needs the axle, the diameter and runs")
             return
+        if dia is None:
+            dia = board_rolling_dia_mm(self.setup, axle, [r[0] for r in runs])
         weight, b, h = combine_ballast(self.setup.rig)
         fs, _fk, rs, _rk = self.setup.grip.axle_mu()
         found = slip_test(weight, self.setup.rig.wheelbase_mm, b, h, self.setup.grip.rolling_resistance,
