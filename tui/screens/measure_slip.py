@@ -94,7 +94,7 @@ class SlipStiffnessForm(Vertical):
         yield Plain(SLIP_TEST_HOW, classes="m-note")
         yield from self._field("m-slip-axle", "Driving axle", "rear", "", )
         yield from self._field("m-slip-dia", "Roll-out diameter", "", "mm")
-        yield from self._field("m-slip-runs", "Runs", "", "", wide=True)
+        yield from self._field("m-slip-runs", "Runs deg:turns:mm", "", "", wide=True)
         yield from self._result("slip_test", "Apply c")
         yield Plain("Slip stiffness c, ramp test (a check): the handover on a board", classes="m-heading")
         yield Plain(RAMP_STEPS, classes="m-note")
@@ -103,7 +103,7 @@ class SlipStiffnessForm(Vertical):
         yield from self._result("ramp", "Apply c")
 
     def on_mount(self) -> None:
-        self.query_one("#m-slip-runs", Input).placeholder = "deg:turns:mm, e.g. 10:8:2650"
+        self.query_one("#m-slip-runs", Input).placeholder = "e.g. 10:8:2650, 14:8:2600"
         self.query_one("#m-slip-dia", Input).placeholder = "the file's"
         self.query_one("#m-ramp", Input).placeholder = "deg, or none"
         self._slip_test()
@@ -148,7 +148,7 @@ class SlipStiffnessForm(Vertical):
         else:
             dia = None  # the file's roll-out at the axle's load on the board, per run
             self._say("m-slip-dia", "")
-            self.query_one("#m-slip-dia-why", Static).update("at the axle's load on the board")
+            self.query_one("#m-slip-dia-why", Static).update("at the board's load")
         text = self.query_one("#m-slip-runs", Input).value
         runs = None
         if text.strip():
