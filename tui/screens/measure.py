@@ -109,8 +109,9 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     CSS_PATH = "measure.tcss"
     BINDINGS = [
         Binding("escape", "cancel", "Cancel", id="measure.cancel"),
-        Binding("down", "app.focus_next", "Next field", show=False, id="measure.next"),
-        Binding("up", "app.focus_previous", "Previous field", show=False, id="measure.previous"),
+        # priority: the scrolling body would otherwise take Up/Down to scroll, not to move between fields
+        Binding("down", "app.focus_next", "Next field", show=False, id="measure.next", priority=True),
+        Binding("up", "app.focus_previous", "Previous field", show=False, id="measure.previous", priority=True),
     ]
 
     def __init__(self, setup: Setup, ascii_only: Optional[bool] = None) -> None:
