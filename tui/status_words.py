@@ -194,12 +194,15 @@ def scrub_band_line(analysis: Analysis, units: Units) -> Optional[str]:
              if band is not None for lo, hi in [band]]
     if not parts:
         return None
-    return "Once started a scrub lasts: " + "; ".join(parts) + " (roll back to unwind between runs)"
+    return "Once started, a scrub lasts: " + "; ".join(parts)
 
 
 def slip_lines(analysis: Analysis, units: Units = Units(ascii_only=True)) -> list[str]:
-    """The tyre-slip figures of a report: stiffness sensitivity and scrub persistence."""
-    return [line for line in (sensitivity_line(analysis, units), scrub_band_line(analysis, units)) if line]
+    """The tyre-slip figures of a report beside the angles: how long a scrub persists once started."""
+    band = scrub_band_line(analysis, units)
+    if band is None:
+        return []
+    return [band, "  (kinetic friction is below static: roll back a little to unwind between ramp runs)"]
 
 
 def _max_grade_line(analysis: Analysis, slope_deg: float, units: Units) -> str:

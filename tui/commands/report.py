@@ -149,7 +149,7 @@ def report_text(a) -> str:
 
     def line(label, key):
         v = ang[key]
-        return f"  {label:<32}{'-' if v is None else f'{v:7.2f}'}"
+        return f"  {label:<37}{'-' if v is None else f'{v:7.2f}'}"
 
     for label, key in ANGLE_LABELS:
         out.append(line(label, key))
