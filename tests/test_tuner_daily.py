@@ -316,3 +316,26 @@ def test_open_list_shows_setups_and_courses_not_other_toml_files(tmp_path):
     (tmp_path / "course.toml").write_text("schema = 1\n[course]\nname = 'x'\n", encoding="utf-8")
     entries, _problems = scan_setup_files([tmp_path])
     assert sorted(e.path.name for e in entries) == ["broken.toml", "course.toml", "rig.toml"]
+
+
+def test_accepting_a_plan_asks_before_replacing_a_pinned_baseline(tmp_path):
+    async def go():
+        app = _app(_copy(tmp_path))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            await pilot.press("b")  # pin
+            await pilot.pause()
+            planned = app.setup.with_value("rig.cg_height_mm", 70.0)
+            await pilot.press("p")
+            await pilot.pause()
+            app.screen.dismiss(planned)  # as Enter on a reached answer does
+            await pilot.pause()
+            assert type(app.screen).__name__ == "ConfirmScreen"
+            await pilot.press("n")  # keep the pinned baseline
+            await pilot.pause()
+            assert app.setup == planned and app.baseline.label == "pinned"
+            await pilot.press("ctrl+z")  # the plan is one undo step
+            await pilot.pause()
+            assert app.setup.rig.cg_height_mm != 70.0
+
+    run(go())
