@@ -87,10 +87,10 @@ def build_rows(setup: Setup) -> list[Row]:
             Row("number", "rear tyre dia", "rig.tire_dia_rear_mm", "length"),
             Row("number", "front roll-out", "rig.rolling_dia_front_mm", "length", optional=True),
             Row("number", "rear roll-out", "rig.rolling_dia_rear_mm", "length", optional=True),
-            Row("number", "front loss/100g", "rig.rolling_dia_loss_front_mm_per_100g", "loss"),
-            Row("number", "rear loss/100g", "rig.rolling_dia_loss_rear_mm_per_100g", "loss"),
+            Row("number", "f loss /100 g", "rig.rolling_dia_loss_front_mm_per_100g", "loss"),
+            Row("number", "r loss /100 g", "rig.rolling_dia_loss_rear_mm_per_100g", "loss"),
             # unset: the roll moment splits by axle load (MODEL section 8)
-            Row("number", "roll share front", "rig.roll_stiffness_front_pct", "pct", optional=True),
+            Row("number", "roll share F", "rig.roll_stiffness_front_pct", "pct", optional=True),
             # what every figure is computed for: the measured rig with its ballast
             Row("derived", "= with ballast", "mass_g", "mass"),
             Row("derived", "  front bias", "front_bias_pct", "pct"),
@@ -127,8 +127,8 @@ def build_rows(setup: Setup) -> list[Row]:
              Row("number", "rear mu stat", "grip.rear_mu_static", "mu", optional=True),
              Row("number", "rear mu kin", "grip.rear_mu_kinetic", "mu", optional=True),
              Row("number", "slip stiffness", "grip.slip_stiffness", "stiff"),
-             Row("number", "front slip stiff", "grip.front_slip_stiffness", "stiff", optional=True),
-             Row("number", "rear slip stiff", "grip.rear_slip_stiffness", "stiff", optional=True)]
+             Row("number", "f slip stiff", "grip.front_slip_stiffness", "stiff", optional=True),
+             Row("number", "r slip stiff", "grip.rear_slip_stiffness", "stiff", optional=True)]
     if setup.course is not None:
         rows += [Row("heading", "Course"),
                  Row("info", "course", "course.name"),
