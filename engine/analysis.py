@@ -149,7 +149,18 @@ class Analysis:
 
     def stiffness_sensitivity(self) -> dict:
         """Handover and max grade with half and double the slip stiffness and with rigid tyres:
-        {"softer": (c, angles), "stiffer": ..., "rigid": ...} (steady climb)."""
+        {"softer": (c, angles), "stiffer": ..., "rigid": ...} (steady climb).
+
+        Three more named-angle searches, so the answer is kept per rig: the slope, heading and
+        throttle being tuned do not change it, and a held slope key must not redo it."""
+        key = replace(self.setup, terrain=replace(self.setup.terrain, slope_deg=0.0, accel_g=0.0, heading_deg=0.0))
+        if key not in _SENSITIVITY:
+            if len(_SENSITIVITY) >= 16:
+                _SENSITIVITY.pop(next(iter(_SENSITIVITY)))
+            _SENSITIVITY[key] = self._sensitivity()
+        return _SENSITIVITY[key]
+
+    def _sensitivity(self) -> dict:
         steady = self._model.steady()
         out = {}
         cf, cr = steady.stiffness
@@ -162,6 +173,9 @@ class Analysis:
             angles = named_climb_angles(steady.with_stiffness(c))
             out[label] = (c[0] if c[0] == c[1] else c, angles)
         return out
+
+
+_SENSITIVITY: dict = {}  # rig (terrain zeroed) -> stiffness_sensitivity(), the last few
 
 
 class _Model:
