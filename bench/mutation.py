@@ -35,6 +35,7 @@ TEST_FILES = (
     "tests/test_measure.py",
     "tests/test_statics.py",
     "tests/test_tyre_slip.py",
+    "tests/test_slope_slip.py",
     "tests/test_course_walk.py",
     "tests/test_traction.py",
     "tests/test_course_statics.py",

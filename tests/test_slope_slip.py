@@ -230,3 +230,22 @@ def test_report_json_slip_rows_match_an_independent_solver(tmp_path):
             want = 1.0 if sliding else abs(force) / (1.1 * n)
             assert row[f"{axle}_grip_used"] == pytest.approx(want, abs=1e-3)
     assert {"none", "front", "rear", "both"} <= seen
+
+
+def test_throttle_named_angles_sit_where_the_slip_states_change():
+    """With a 0.3 g punch the throttle set of angles are the state changes of the onset solve under
+    that acceleration (the brentq reference, grade loads with the inertia term of Gillespie ch. 2)."""
+    s = _demo(25.0, crr=0.03)
+    s = replace(s, terrain=replace(s.terrain, accel_g=0.3))
+    a = analyse(s)
+    k = a.overdrive.ratio
+
+    def state(t):
+        _, nf, nr, f = _grade(s, t, 0.3)
+        return reference_state(nf, nr, f, (1.0, 0.8), (1.0, 0.8), 25.0, 25.0, k)[0]
+
+    thr = a.angles_with_throttle_deg
+    h, m = thr["handover"], thr["max_grade"]
+    assert m < a.angles_deg["max_grade"] - 5.0  # the punch costs grade
+    assert state(m - 0.02) in ("none", "front", "rear") and state(m + 0.02) == "both"
+    assert state(h - 0.02) != "front" and state(h + 0.02) == "front"
