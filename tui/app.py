@@ -14,6 +14,8 @@ and then the chart follow a frame or two later, as soon as the first analysis is
 
 from __future__ import annotations
 
+import dataclasses
+
 import gc
 import math
 import time
@@ -244,6 +246,13 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
                                        if self.baseline is not None else None)
         self._update(chart_now)
 
+    def _only_the_slope_moved(self) -> bool:
+        a = self.analysis
+        if a is None or not np.array_equal(a.sweep.slope_deg, self._slopes()):
+            return False
+        same = lambda s: dataclasses.replace(s, terrain=dataclasses.replace(s.terrain, slope_deg=0.0))  # noqa: E731
+        return same(a.setup) == same(self.setup)
+
     def _show_words(self) -> None:
         """A held key's update: the words now, the chart after them (at its own slower rate)."""
         self._update(chart_now=False)
@@ -256,7 +265,12 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
 
         if self.baseline is not None and self._baseline_analysis is None:
             self._baseline_analysis = analyse(self.baseline.setup, self._slopes())
-        self.analysis = analyse(self.setup, self._slopes())
+        if self._only_the_slope_moved():
+            # the sweep covers every slope and the named angles are the rig's own: the setup's
+            # slope only picks where the words and the marker look, so a held slope key analyses once
+            self.analysis = dataclasses.replace(self.analysis, setup=self.setup)
+        else:
+            self.analysis = analyse(self.setup, self._slopes())
         view = status_view(self.analysis, self.units, self._baseline_analysis)
         self.flag.show(view.level, view.flag)
         self.status.view = view
