@@ -247,6 +247,8 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         self._update(chart_now)
 
     def _only_the_slope_moved(self) -> bool:
+        import numpy as np  # loaded by the first analysis already
+
         a = self.analysis
         if a is None or not np.array_equal(a.sweep.slope_deg, self._slopes()):
             return False
