@@ -17,6 +17,10 @@ backward margins shrink, which is exactly the rule of `engine.traction`. On grou
 the pair also changes the normal forces (a tyre pushed into a step edge presses harder on it); if
 no margin shrinks, no friction limit is ever reached — the linear program is unbounded — and the
 driveline **binds**: the forces grow with the motor's torque until something stalls or breaks.
+Where the pair presses a tyre into a steep face hard enough, the grip shares ``F/(μ_s N)`` move
+against ``P``: the wind-up then grows towards the bottom of the
+interval where both grip, and the limit there is the one reached (an axle lets go alone only with
+the fast one driving forward or the slow one dragged backward, MODEL §5 as ``c → ∞``).
 The axle that lets go then carries ``μ_k N`` and the other must stay within ``μ_s N``; otherwise
 both slip.
 
@@ -195,7 +199,7 @@ def _one_fast(fast, base, direction, msf, mkf, msr, mkr):
     axles = ("front", "rear")
     mu_s, mu_k = {"front": msf, "rear": msr}, {"front": mkf, "rear": mkr}
     # the four limits: margin m0 + P·dm, reached at P = −m0/dm when it shrinks (dm < 0)
-    reach, which = [], []
+    reach, floor, which = [], [], []
     for axle in axles:
         i = 0 if axle == "front" else 2
         for sign in (1.0, -1.0):
@@ -203,10 +207,22 @@ def _one_fast(fast, base, direction, msf, mkf, msr, mkr):
             dm = mu_s[axle] * direction[..., i] - sign * direction[..., i + 1]
             with np.errstate(divide="ignore", invalid="ignore"):
                 reach.append(np.where(dm < 0, -m0 / dm, np.inf))
+                floor.append(np.where(dm > 0, -m0 / dm, -np.inf))
             which.append((axle, sign))
-    reach = np.stack(reach, axis=-1)
+    reach, floor = np.stack(reach, axis=-1), np.stack(floor, axis=-1)
     first = np.argmin(reach, axis=-1)
     binds = ~np.isfinite(np.min(reach, axis=-1))
+    # Growing P is growing wind-up only while the normal forces stay put (uniform ground). Where P
+    # also presses a tyre into a steep face, the grip shares F/(μ_s N) can move against P and the
+    # wind-up (fast share minus slow share, the c → ∞ limit of the slip difference) grows
+    # towards the other end of the interval where both grip. An axle can only let go alone in the
+    # direction its speed mismatch drives it (fast forward, slow backward): a limit at the top of
+    # the interval that breaks this is no solution of the slip model as c → ∞, the bottom one is.
+    consistent = np.array([(axle == fast) == (sign > 0) for axle, sign in which])
+    low = np.argmax(floor, axis=-1)
+    flip = (~binds & ~consistent[first] & consistent[low]
+            & (np.max(floor, axis=-1) <= np.min(reach, axis=-1)))
+    first = np.where(flip, low, first)
     state = np.full(first.shape, BOTH, dtype=np.int8)
     forces = np.full(first.shape + (4,), np.nan)
     reserve = np.full(first.shape, np.nan)

@@ -24,7 +24,7 @@ import numpy as np
 import pytest
 import scipy.linalg
 import scipy.optimize
-from hypothesis import assume, given, settings
+from hypothesis import assume, example, given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
@@ -232,6 +232,11 @@ def _solve_one(g):
 
 
 @given(g=geometry)
+# rear on a 71° face, front on the flat, rear overdriven: wind-up grows towards lower P (see
+# test_wall_rear_overdriven_hand_worked); found by hypothesis
+@example(g={"alpha_f": 0.0, "alpha_r": 71.0, "pitch": 0.0, "fx": 60.0, "fz": -62.0, "rx": -60.0, "rz": -20.0,
+            "mu_s": 1.0, "mu_k_share": 1.0, "mu_r_scale": 1.0, "crr": 0.0, "accel": 0.0, "od": "rear",
+            "weight": 500.0})
 def test_holding_states_solve_the_equilibrium_system(g):
     """Every holding state's forces are the scipy.linalg.solve solution of the three equilibrium
     equations plus that state's slip condition, and keep the other axle within μ_s N."""
@@ -264,8 +269,14 @@ def _first_to_let_go(a, b, fast, mu_f, mu_r):
     """Reference: which axle a growing wind-up pair brings to its limit first, or None.
 
     The equilibrium solutions are x0 + P d (scipy.linalg.lstsq and null_space of the 3x4
-    system), P the overdriven axle's force. Each Coulomb margin μ_s N ∓ F is linear in P; from
-    any split where both grip, raising P stops at the first margin that shrinks to zero.
+    system), P the overdriven axle's force. Each Coulomb margin μ_s N ∓ F is linear in P; the
+    splits where both grip are the interval between the last growing margin's zero and the first
+    shrinking one's. Raising P normally stops at the top. But the driveline forces the slips
+    apart (MODEL §5: s_f = (K/ρ) s_r), so an axle can only let go alone with the fast one driving
+    forward or the slow one dragged backward (with rigid tyres the other would have to slide
+    too); where the top limit is the other kind, P also loads the fast axle's own normal force
+    and its grip share falls as P grows: the wind-up grows towards the bottom, which is then the
+    limit reached (hand-worked in test_wall_rear_overdriven_hand_worked).
     None when no split grips on both axles or two limits tie.
     """
     x0 = scipy.linalg.lstsq(a, b)[0]
@@ -275,15 +286,21 @@ def _first_to_let_go(a, b, fast, mu_f, mu_r):
     for i, mu in ((0, mu_f), (2, mu_r)):
         for sign in (1.0, -1.0):
             value, slope = mu * x0[i] - sign * x0[i + 1], mu * d[i] - sign * d[i + 1]
-            (lows if slope > 0 else ups).append((-value / slope, i))
+            (lows if slope > 0 else ups).append((-value / slope, i, (i == fast) == (sign > 0)))
     if not ups:
         return None
     ups.sort()
-    lo = max((p for p, _ in lows), default=-np.inf)
+    lows.sort(reverse=True)
+    lo = lows[0][0] if lows else -np.inf
     scale = float(np.abs(b).max())
     if ups[0][0] <= lo + 1e-6 * scale or (len(ups) > 1 and ups[1][0] - ups[0][0] < 1e-6 * scale):
         return None
-    return FRONT if ups[0][1] == 0 else REAR
+    first = ups[0]
+    if not first[2] and lows and lows[0][2]:
+        if len(lows) > 1 and lows[0][0] - lows[1][0] < 1e-6 * scale:
+            return None
+        first = lows[0]
+    return FRONT if first[1] == 0 else REAR
 
 
 def test_first_to_let_go_follows_the_friction_cone():
@@ -360,6 +377,43 @@ def test_crest_rear_overdriven_hand_worked():
     assert_allclose(t.front_force_g[0], 0.2 * u, rtol=1e-12)
     assert_allclose(out.rear_normal_g[0], u * math.sqrt(2.0), rtol=1e-12)
     assert_allclose(t.rear_force_g[0], 0.8 * u * math.sqrt(2.0), rtol=1e-12)
+
+
+def test_wall_rear_overdriven_hand_worked():
+    """Rear tyre on a 71° face, front on the flat, rear overdriven, μ_s = μ_k = 1: hand-worked.
+
+    W = 500 gf, contacts relative to the CG: front (60, −62) mm, α_f = 0; rear (−60, −20) mm,
+    α_r = 71° (c = cos 71°, s = sin 71°). Three equations (Meriam & Kraige ch. 3):
+        Σx: F_f − s N_r + c F_r = 0;   Σz: N_f + c N_r + s F_r = 500;
+        M:  60 N_f + 62 F_f + N_r (−60c − 20s) + F_r (20c − 60s) = 0.
+    Kinematics (MODEL §5, s_f = (K/ρ) s_r with K/ρ < 1): with rigid tyres an axle lets go alone
+    only with the rear driving forward or the front dragged backward (the front sliding forward
+    would put the rear's slip beyond it, sliding too).
+    Rear lets go (F_r = +N_r): F_f = (s − c) N_r, N_f = 500 − (s + c) N_r and the moment gives
+        N_r = 30000/(162c + 78s) = 237.168, F_f = 147.033, N_f = 198.539,
+    front within μ_s N_f (reserve 51.506): state "rear". The front dragged backward
+    (F_f = −N_f) needs N_r < 0 (scipy.linalg.solve below): not a state. Raising the rear's force
+    here presses it into the face (N_r grows 197× as fast), so its grip share falls: growing the
+    pair along +P is unwinding, and the front's forward limit at the top of that interval
+    (F_f = +N_f, the answer before this was fixed) is no solution. The slip model at c = 1e7
+    (MODEL §5: the rigid rule is its limit) gives the same forces.
+    """
+    args = (500.0, [[60.0, -62.0]], [[-60.0, -20.0]], [0.0], [71.0], [0.0], (1.0, 1.0), (1.0, 1.0), "rear")
+    out = solve_contacts(*args)
+    t = out.traction
+    c, s = math.cos(math.radians(71.0)), math.sin(math.radians(71.0))
+    nr = 30000.0 / (162.0 * c + 78.0 * s)
+    assert int(t.state[0]) == REAR
+    got = [out.front_normal_g[0], t.front_force_g[0], out.rear_normal_g[0], t.rear_force_g[0]]
+    assert_allclose(got, [500.0 - (s + c) * nr, (s - c) * nr, nr, nr], rtol=1e-9)
+    assert_allclose(t.reserve_g[0], 500.0 - 2.0 * s * nr, rtol=1e-9)
+    a = _equilibrium_rows((60.0, -62.0), (-60.0, -20.0), 0.0, math.radians(71.0), 0.0)
+    front_back = scipy.linalg.solve(np.vstack((a, [1.0, 1.0, 0.0, 0.0])), np.append(_loads(500.0, 0.0, 0.0), 0.0))
+    assert front_back[2] < 0
+    slip = solve_slip(500.0, np.array(args[1]), np.array(args[2]), np.zeros((1, 2)), [0.0], [71.0], [0.0],
+                      (1.0, 1.0), (1.0, 1.0), 1e7, 1e7, [0.95], [0.0], [1.0])
+    assert int(slip.traction.state[0]) == REAR
+    assert_allclose(slip.traction.front_force_g[0], (s - c) * nr, rtol=1e-6)
 
 
 def test_tyre_pushed_into_an_edge_grips_harder():
