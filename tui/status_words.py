@@ -175,8 +175,8 @@ def stiffness_text(c) -> str:
 def sensitivity_line(analysis: Analysis, units: Units) -> Optional[str]:
     """How the handover depends on the slip stiffness: softer, stiffer and rigid tyres (None with
     no overdrive: there is no handover to move)."""
-    if analysis.overdrive.overdriven_axle is None:
-        return None
+    if analysis.overdrive.overdriven_axle is None or analysis.setup.grip.rigid:
+        return None  # no handover to move, or already the rigid worst case
     parts = []
     for label, (c, ang) in analysis.stiffness_sensitivity().items():
         h = ang["handover"]
