@@ -16,7 +16,7 @@ import importlib
 _HOME = {
     "Analysis": "analysis", "EffectiveRig": "analysis", "Sweep": "analysis", "analyse": "analysis",
     "effective_rig": "analysis", "setup_overdrive": "analysis",
-    "LoadedSetup": "setup_file", "SetupError": "setup_file", "check_value": "setup_file",
+    "LoadedSetup": "setup_file", "SetupError": "setup_file", "check_value": "value_check",
     "load_setup": "setup_file", "parse_setup": "setup_file",
     "BallastItem": "setup_model", "Course": "setup_model", "Driveline": "setup_model",
     "FIELDS": "setup_model", "Grip": "setup_model", "Rig": "setup_model",
