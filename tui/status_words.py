@@ -227,7 +227,9 @@ def _lift_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
 
 def _sidehill_line(analysis: Analysis, units: Units) -> str:
     a = analysis.angles_deg
-    return f"Sidehill roll {units.angle(a['sidehill_roll'])}, slide {units.angle(a['sidehill_slide'])}"
+    # the slide figure holds with the driveline unwound (MODEL section 2): say so
+    return (f"Sidehill roll {units.angle(a['sidehill_roll'])}, slide {units.angle(a['sidehill_slide'])}"
+            " unwound")
 
 
 def compare_line(analysis: Analysis, baseline: Analysis, units: Units) -> str:

@@ -61,7 +61,7 @@ ROWS: list[tuple[str, str, Callable, Optional[str]]] = [
     ("front_lift", "front lift", lambda a: a.angles_deg["front_lift"], ".2f"),
     ("rear_lift", "rear lift", lambda a: a.angles_deg["rear_lift"], ".2f"),
     ("sidehill_roll", "sidehill roll", lambda a: a.angles_deg["sidehill_roll"], ".2f"),
-    ("sidehill_slide", "sidehill slide", lambda a: a.angles_deg["sidehill_slide"], ".2f"),
+    ("sidehill_slide", "sidehill slide, unwound", lambda a: a.angles_deg["sidehill_slide"], ".2f"),
     ("slope_deg", "tuned slope", lambda a: a.setup.terrain.slope_deg, ".1f"),
     ("slip_stiffness", "slip stiffness", lambda a: _stiffness(a.setup.grip.axle_stiffness()), None),
     ("throttle", "throttle [g]", lambda a: f"{a.accel_g:+g}" if a.accel_g else "steady", None),
