@@ -10,8 +10,8 @@ vertex, i.e. a step edge, whose normal runs from the edge to the wheel centre.
 Pose of the rig for a rear-wheel position: the rear centre sits on the rear tyre's curve; the front
 centre is on the front tyre's curve at the centre-to-centre distance. Rotating the chassis about
 the rear centre from nose-up down, the front wheel settles on the first point of its curve it
-meets: a scan brackets that first crossing and Newton steps kept inside the bracket refine it,
-for all positions at once.
+meets: the highest angle at which the circle about the rear centre meets a vertex arc or an
+offset segment, each in closed form, for all positions at once.
 
 Path ratio. Rolling without slip, each wheel turns by the travel of its own centre along its
 centre curve, whose tangent at a contact of surface angle ``α`` is ``(cos α, sin α)`` (on a
@@ -48,10 +48,7 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
-_SCAN = np.linspace(0.0, 1.0, 6)  # share of the pitch bracket, from its nose-up end
-_MAX_STEPS = 60  # Newton converges in a handful; bisection alone would need ~44
 _GAP_TOL_MM = 1e-9
-_PSI_TOL = 1e-13  # [rad]
 # A kink in the centre curve is looked for this far either side of the centre [mm]; a contact
 # angle that jumps by more than KINK_MIN_DEG across it is a wheel touching two faces at once.
 # A smooth vertex arc turns by 2·KINK_PROBE_MM/r [rad] over the same span, far below that.
@@ -272,46 +269,55 @@ def _front_on_ground(front: WheelPath, rear_xz, reach_mm):
 
     ``g(ψ) = z_R + D sin ψ − z_f(x_R + D cos ψ)`` is the front centre's height above its curve
     with the chassis at angle ψ about the rear centre. The front centre is at least ``r_f`` above
-    the lowest terrain within reach and at most ``r_f`` above the highest, which brackets ψ; the
-    first zero coming down from nose-up is found on a scan of that bracket, then refined for every
-    position at once by Newton steps kept inside it (bisection where a step would leave it). The
-    curve's slope is the tangent of the contact angle, so ``g'(ψ) = D cos ψ + D sin ψ tan α_f``.
+    the lowest terrain within reach and at most ``r_f`` above the highest, which brackets ψ
+    (``g(top) >= 0``, ``g(bottom) <= 0``). The first zero coming down from nose-up is the highest ψ
+    in that bracket at which the circle of radius ``D`` about the rear centre meets any element of
+    the curve: the upper half of a vertex circle or an offset segment within its span. Each of
+    these meets the circle at angles in closed form (circle–circle, circle–line); every such point
+    is on or below the envelope, so the highest one has ``g = 0`` with ``g >= 0`` above it.
+
+    A sampled search cannot promise that: the circle can dip into a crest's vertex arc by a
+    fraction of a millimetre over a degree or two and come out again, and a scan stepping over
+    the dip then settles on a later root with the tyre passed through the crest.
     """
     xr, zr = rear_xz[..., 0], rear_xz[..., 1]
     r = front.radius_mm
     z_lo, z_hi = _terrain_range(front, xr - r, xr + reach_mm + r)
     top = np.arcsin(np.clip((z_hi + r - zr) / reach_mm, -1.0, 1.0))
     bottom = np.arcsin(np.clip((z_lo + r - zr) / reach_mm, -1.0, 1.0))
-    grid = top[..., None] + (bottom - top)[..., None] * _SCAN
-    g = zr[..., None] + reach_mm * np.sin(grid) - centre_height(front, xr[..., None] + reach_mm * np.cos(grid))[0]
+    g_top = zr + reach_mm * np.sin(top) - centre_height(front, xr + reach_mm * np.cos(top))[0]
     # g(top) >= 0 by construction; rounding may leave it a hair below when top is the root
-    placed = g[..., 0] >= -_GAP_TOL_MM
-    below = g[..., 1:] <= 0
-    j = np.where(below.any(axis=-1), np.argmax(below, axis=-1) + 1, _SCAN.size - 1)
-    hi = np.take_along_axis(grid, (j - 1)[..., None], -1)[..., 0]  # front centre above its curve
-    lo = np.take_along_axis(grid, j[..., None], -1)[..., 0]  # touching or below
-    psi = np.where(g[..., 0] <= _GAP_TOL_MM, top, 0.5 * (hi + lo)).ravel()
-    hi, lo, x0, z0 = hi.ravel().copy(), lo.ravel().copy(), xr.ravel(), zr.ravel()
-    live = np.flatnonzero(placed.ravel())  # positions still being refined
-    for _ in range(_MAX_STEPS):
-        if live.size == 0:
-            break
-        p, h, l = psi[live], hi[live], lo[live]
-        c, s = np.cos(p), np.sin(p)
-        zf, ang = centre_height(front, x0[live] + reach_mm * c)
-        gap = z0[live] + reach_mm * s - zf
-        above = gap > 0
-        h = np.where(above, p, h)
-        l = np.where(above, l, p)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            step = p - gap / (reach_mm * (c + s * np.tan(ang)))
-        # a step a rounding error outside the bracket is the root at its end
-        inside = (step >= l - _PSI_TOL) & (step <= h + _PSI_TOL)
-        done = (np.abs(gap) <= _GAP_TOL_MM) | (h - l <= _PSI_TOL)
-        psi[live] = np.where(done, p, np.where(inside, np.clip(step, l, h), 0.5 * (h + l)))
-        hi[live], lo[live] = h, l
-        live = live[~done]
-    psi = psi.reshape(xr.shape)
+    placed = g_top >= -_GAP_TOL_MM
+    xs, zs = front.x_mm, front.z_mm
+    idx, inside = _vertex_window(xs, xr - r, xr + reach_mm + r, extra=1)
+    x0, z0 = xr[..., None], zr[..., None]
+    # vertex circles: |R + D u(ψ) − v| = r  ->  cos(ψ − θ) = (D² + l² − r²)/(2 D l)
+    dx, dz = xs[idx] - x0, zs[idx] - z0
+    ell = np.hypot(dx, dz)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        cos_gap = (reach_mm ** 2 + ell * ell - r * r) / (2.0 * reach_mm * ell)
+    spread = np.arccos(np.clip(cos_gap, -1.0, 1.0))
+    meets = inside & (np.abs(cos_gap) <= 1.0)
+    vert = np.arctan2(dz, dx)[..., None] + np.stack((spread, -spread), axis=-1)
+    upper = z0[..., None] + reach_mm * np.sin(vert) >= zs[idx][..., None] - _GAP_TOL_MM
+    vert = np.where(meets[..., None] & upper, np.arctan2(np.sin(vert), np.cos(vert)), -np.inf)
+    vert = vert.reshape(vert.shape[:-2] + (-1,))
+    # offset segments: n·(R + D u(ψ) − P0) = 0 with n = (−sin a, cos a)  ->  sin(ψ − a) = m/D
+    k = np.minimum(idx, xs.size - 2)
+    a, lo, hi = front.seg_angle[k], front.seg_lo[k], front.seg_hi[k]
+    m = -np.sin(a) * (lo - x0) + np.cos(a) * (front.seg_z0[k] - z0)
+    turn = np.arcsin(np.clip(m / reach_mm, -1.0, 1.0))
+    seg = a[..., None] + np.stack((turn, np.pi - turn), axis=-1)
+    sx = x0[..., None] + reach_mm * np.cos(seg)
+    on = ((inside & (np.abs(m) <= reach_mm))[..., None] & (sx >= lo[..., None] - _GAP_TOL_MM)
+          & (sx <= hi[..., None] + _GAP_TOL_MM))
+    seg = np.where(on, np.arctan2(np.sin(seg), np.cos(seg)), -np.inf).reshape(seg.shape[:-2] + (-1,))
+    cand = np.concatenate((vert, seg), axis=-1)
+    # a rounding error above the bracket is the root at its top
+    slack = 1e-7  # asin is ill-conditioned near ±90°: its rounding is ~sqrt(eps) there [rad]
+    cand = np.where((cand >= bottom[..., None] - slack) & (cand <= top[..., None] + slack), cand, -np.inf)
+    psi = np.clip(cand.max(axis=-1, initial=-np.inf), bottom, top)
+    psi = np.where(placed & np.isfinite(psi), psi, top)
     return psi, placed
 
 

@@ -17,7 +17,7 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import assume, given
+from hypothesis import assume, example, given
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
@@ -115,6 +115,8 @@ def test_centre_curve_is_r_from_the_terrain(steps, r):
 
 
 @given(steps=profiles, wheelbase=st.floats(150.0, 450.0), rf=st.floats(25.0, 70.0), rr=st.floats(25.0, 70.0))
+@example(steps=[(20.0, 0.0), (20.0, 0.0), (62.0, 0.0), (200.0, 60.0), (136.0, -39.0)], wheelbase=214.0,
+         rf=25.0, rr=25.0)
 def test_front_wheel_settles_on_the_first_touch(steps, wheelbase, rf, rr):
     """The front centre is on its curve at the centre distance, and rotating the chassis about the
     rear centre from nose-up, no earlier angle would have met the front curve (dense scan)."""
