@@ -29,6 +29,17 @@ from ..units import plain_scrollbars
 # Words from files and setups may hold brackets: never read them as markup.
 Plain = partial(Static, markup=False)
 
+def field_row(field_id: str, label: str, value: str, unit: str, wide: bool = False) -> ComposeResult:
+    """One reading: label, input, unit and the line that says why a value is refused (every
+    section of the measuring screen, the slip tests included, lays its readings out this way)."""
+    with Horizontal(classes="m-row"):
+        yield Plain(label, classes="m-label")
+        yield Input(value, id=field_id, compact=True, select_on_focus=True,
+                    classes="m-input -wide" if wide else "m-input")
+        yield Plain(unit, classes="m-unit")
+        yield Plain("", id=f"{field_id}-why", classes="m-why")
+
+
 KEYS = "Up/Down: field   Enter: next, then Apply   Esc: cancel"
 # Typing pauses this long before the sums are redone (a burst of keys costs one redraw, not one each).
 SETTLE_S = 0.12
@@ -130,12 +141,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         return bool(getattr(self.app, "ascii_only", False))
 
     def _field(self, field_id: str, label: str, value: str, unit: str, wide: bool = False) -> ComposeResult:
-        with Horizontal(classes="m-row"):
-            yield Plain(label, classes="m-label")
-            yield Input(value, id=field_id, compact=True, select_on_focus=True,
-                        classes="m-input -wide" if wide else "m-input")
-            yield Plain(unit, classes="m-unit")
-            yield Plain("", id=f"{field_id}-why", classes="m-why")
+        yield from field_row(field_id, label, value, unit, wide)
 
     def _result(self, key: str, label: str) -> ComposeResult:
         stem = key.split(".")[1]

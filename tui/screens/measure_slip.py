@@ -77,12 +77,9 @@ class SlipStiffnessForm(Vertical):
     # ---- layout -------------------------------------------------------------------------------
 
     def _field(self, field_id: str, label: str, value: str, unit: str, wide: bool = False) -> ComposeResult:
-        with Horizontal(classes="m-row"):
-            yield Plain(label, classes="m-label")
-            yield Input(value, id=field_id, compact=True, select_on_focus=True,
-                        classes="m-input -wide" if wide else "m-input")
-            yield Plain(unit, classes="m-unit")
-            yield Plain("", id=f"{field_id}-why", classes="m-why")
+        from .measure import field_row  # the screen that holds this form is loaded already
+
+        yield from field_row(field_id, label, value, unit, wide)
 
     def _result(self, stem: str, label: str) -> ComposeResult:
         with Horizontal(classes="m-row"):
