@@ -68,7 +68,8 @@ import numpy as np
 
 from .analysis import Analysis, analyse
 from .goal_levers import AddBallast, CgHeight, Compound, Lever, MoveBallast, Overdrive, setup_is_valid
-from .goal_roots import REACH_TOL_DEG, brent_root, nearest_roots, outward_margins, scan_points, tidy
+from .goal_roots import (REACH_TOL_DEG, brent_root, nearest_roots, outward_margins, scan_points,
+                         sorted_unique, tidy)
 from .goal_targets import OPS, TARGET_ANGLES, LeverError, Target, angle_value_deg
 from .setup_model import Setup
 
@@ -220,7 +221,7 @@ def plan(setup: Setup, target: Target, lever: Lever, *, samples: int = SCAN_SAMP
     scale = max(lever.scale(setup), lever.step)
     xtol = scale * 1e-10
     method = "bracket"
-    pts = np.unique(np.array([lo, start, hi], dtype=float)) if monotone else None
+    pts = sorted_unique([lo, start, hi]) if monotone else None
     g = None if pts is None else np.array([ev.margin(p) for p in pts])
     if pts is None or (not (g >= 0).any() and (g <= -_BIG_DEG).any()):
         # not monotone, or a limit the loader refuses: scan

@@ -14,8 +14,6 @@ import math
 from dataclasses import dataclass
 from typing import Optional, Sequence
 
-import numpy as np
-
 # Below this the mismatch is rounding noise from gear and tyre ratios, not an overdrive.
 SAME_SPEED_TOL = 1e-9
 
@@ -123,10 +121,14 @@ def rolling_dia_under_load_mm(level_dia_mm, loss_mm_per_100g, normal_g, level_no
         at most the free diameter. The effective rolling radius lies between the loaded and the
         free radius, so the free diameter bounds it (Pacejka 2012, sec. 3.2; Wong, ch. 1).
     """
+    import numpy as np  # here, not at the top: loading a setup (which checks gear stages) stays numpy-free
+
     change = np.clip(np.asarray(normal_g, float) - level_normal_g, -level_normal_g, level_normal_g)
     return np.minimum(level_dia_mm - loss_mm_per_100g * change / 100.0, free_dia_mm)
 
 
 def loaded_speed_ratio(gear_pct, front_dia_mm, rear_dia_mm):
     """``K = (1 + p/100) D_f(N_f)/D_r(N_r)``: front over rear tread speed. [-] (MODEL section 4)"""
+    import numpy as np
+
     return (1.0 + gear_pct / 100.0) * np.asarray(front_dia_mm, float) / np.asarray(rear_dia_mm, float)

@@ -227,7 +227,7 @@ def test_flag_suggests_fixes_after_the_keys_pause_and_f_opens_the_planner_with_t
             words = app.status.fixes
             # matching ground speeds ends wind-up: p = 100 (D_r / D_f - 1) = 100 (112/114 - 1) = -1.75 %
             # (tyre sizes from the demo file, worked by hand)
-            assert words.startswith("Fix:") and "-1.8 %" in words and "(f: plan)" in words
+            assert words.startswith("Fix (f): ") and "-1.8 %" in words
             await pilot.press("f")
             await pilot.pause()
             assert type(app.screen).__name__ == "PlanScreen"
@@ -242,33 +242,6 @@ def test_flag_suggests_fixes_after_the_keys_pause_and_f_opens_the_planner_with_t
             assert app.flag.level == "ok" and app.status.fixes == ""
 
     run(go())
-
-
-def test_prefetch_child_sends_the_first_screen_the_parent_would_work_out(monkeypatch):
-    """Plumbing, not physics: the forked child's answer equals the same calls made here."""
-    import os
-
-    import pytest
-
-    from slopetune.engine import analyse
-    from slopetune.tui import prefetch
-    from slopetune.tui.slopes import slope_grid
-    from slopetune.tui.status_words import status_view
-    from slopetune.tui.units import Units
-    from slopetune.tui.widgets.load_chart import chart_data
-
-    if not hasattr(os, "fork"):
-        pytest.skip("no fork here: the tuner starts without the child")
-    monkeypatch.setenv("SLOPETUNE_PREFETCH", "1")
-    setup = load_setup(DEMO).setup
-    child = prefetch.start(setup, None, False)
-    first = child.result()
-    units = Units(imperial=False, ascii_only=False)
-    a = analyse(setup, slope_grid(False))
-    assert first.setup == setup
-    assert first.chart == chart_data(a, units) and first.view == status_view(a, units)
-    monkeypatch.setenv("SLOPETUNE_PREFETCH", "0")
-    assert prefetch.start(setup, None, False) is None
 
 
 def test_every_file_warning_shows_with_did_you_mean(tmp_path):

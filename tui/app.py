@@ -7,9 +7,11 @@ update at most 12 times a second and the chart, one frame after them, 5 times, a
 the latest value, so a slow link never queues up frames. File actions live in `app_files.py`, the
 modal screens (imported when first used) in `app_screens.py`.
 
-The first frame shows the title, a placeholder flag and the form before numpy, the analysis or
-plotext is even imported (together they cost more than Textual's whole start): the flag, the words
-and then the chart follow a frame or two later, as soon as the first analysis is done.
+Start-up (see `app_main.run_tuner` and `prefetch.py`): a child forked before Textual loads works
+out the first screen while this process imports Textual; when its answer is in by the time the app
+starts, the first frame is the whole screen, chart included, and numpy loads here only after it.
+Without the child (no fork, a busy or one-core machine) the first frame shows the title, a
+placeholder flag and the form, and the words and the chart follow once the analysis is done.
 """
 
 from __future__ import annotations
@@ -39,7 +41,8 @@ from .app_screens import ScreenActions
 from .history import History
 from .slopes import SLOPE_SPANS, slope_grid  # noqa: F401 - SLOPE_SPANS: part of the app's names
 from .throttle import Throttle
-from .widgets.load_chart import LoadChart, chart_data
+from .chart_data import chart_data
+from .widgets.load_chart import LoadChart
 from .widgets.setup_form import SetupForm
 from .widgets.status_pane import FlagLine, StatusPane
 from .widgets.title_bar import TitleBar
@@ -70,18 +73,27 @@ class TunerScreen(Screen):
     """The tuner's one screen; a plain notice replaces it when the terminal is too small."""
 
     def __init__(self, setup: Setup, units: Units, title: tuple[str, str, bool, str],
-                 note: tuple[str, str]) -> None:
+                 note: tuple[str, str], first=None) -> None:
+        """`first`: a `prefetch.FirstScreen` for `setup`, drawn in the very first frame (or None)."""
         super().__init__(id="tuner")
         self._setup, self._units, self._title, self._first_note = setup, units, title, note
+        self._first = first
 
     def compose(self) -> ComposeResult:
+        flag = FlagLine(WAIT_WORDS, id="flag")
+        chart = LoadChart(ascii_only=self._units.ascii_only, id="chart")
+        status = StatusPane(self._first_note, id="status")
+        if self._first is not None:
+            flag.show(self._first.view.level, self._first.view.flag)
+            chart.show(self._first.chart)
+            status.view = self._first.view
         yield TitleBar(*self._title, id="title")
-        yield FlagLine(WAIT_WORDS, id="flag")
+        yield flag
         with Horizontal(id="body"):
             yield SetupForm(self._setup, self._units, id="form")
             with Vertical(id="right"):
-                yield LoadChart(ascii_only=self._units.ascii_only, id="chart")
-                yield StatusPane(self._first_note, id="status")
+                yield chart
+                yield status
         yield Static(f"Terminal too small: slopetune needs at least {MIN_COLUMNS}x{MIN_ROWS}.\n"
                      "Make the window larger; your setup is kept.", id="too-small", markup=False)
         yield Footer()
@@ -131,8 +143,10 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
     ]
 
     def __init__(self, loaded: LoadedSetup, *, baseline: Optional[LoadedSetup] = None,
-                 ascii_only: bool = False, driver_class=None, prefetch=None) -> None:
-        """`prefetch`: a `tui.prefetch.Prefetch` working out the first screen in a child process."""
+                 ascii_only: bool = False, driver_class=None, prefetch=None, first_screen=None) -> None:
+        """`prefetch`: a `tui.prefetch.Prefetch` still working out the first screen in a child
+        process; `first_screen`: its answer when it came before the app started (drawn in the first
+        frame)."""
         super().__init__(driver_class=driver_class)
         self.prefetch = prefetch
         self.loaded = loaded
@@ -156,8 +170,9 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         self.chart_updates = Throttle(self, CHART_EVERY_S, self._push_chart)
         self._first_note = "\n".join(loaded.warnings) if loaded.warnings else SHORT_CAUTION  # every one
         self.resume_gc = False  # the starter paused the garbage collector for the first frame
+        self._first_screen = first_screen if self._fits(first_screen) else None
         self.main_screen = TunerScreen(self.setup, self.units, self._title_words(),
-                                       (self._first_note, "info"))
+                                       (self._first_note, "info"), self._first_screen)
 
     # ----- set-up
 
@@ -180,15 +195,24 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         self.form.focus()
         self._note(self._first_note, "warning" if self.loaded.warnings else "info")
         self._show_title()
+        if self._first_screen is not None:
+            # the first frame already holds the child's chart and words (tui/prefetch.py)
+            self._after_first_screen()
+            return
         if self.prefetch is not None:
-            # a forked child is working out the first screen (tui/prefetch.py): show it the moment
-            # it arrives, and analyse here only after that frame
+            # a forked child is still working out the first screen: show it the moment it
+            # arrives, and analyse here only after that frame
             import asyncio
 
             asyncio.get_running_loop().add_reader(self.prefetch.fd, self._prefetched)
             return
         # the form first; numpy, the analysis and then plotext load after that frame
         self.call_after_refresh(self._first_analysis)
+
+    def _fits(self, first) -> bool:
+        """Whether a prefetched first screen is still the one to show (no key has moved on)."""
+        return (first is not None and getattr(self, "analysis", None) is None and first.setup == self.setup
+                and not self.full_range)
 
     def _prefetched(self) -> None:
         """The child's first screen is ready: show it, then analyse here after that frame."""
@@ -197,16 +221,19 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         prefetch, self.prefetch = self.prefetch, None
         asyncio.get_running_loop().remove_reader(prefetch.fd)
         first = prefetch.result()
-        if first is not None and self.analysis is None and first.setup == self.setup and not self.full_range:
+        if self._fits(first):
             self.flag.show(first.view.level, first.view.flag)
             self.status.view = first.view
             self.chart.show(first.chart)
-            if self.resume_gc:
-                self.call_after_refresh(self._resume_gc)
-            # one more frame for the chart to reach the terminal, then numpy loads here
-            self.call_after_refresh(lambda: self.call_after_refresh(self._first_analysis))
+            self._after_first_screen()
         else:
             self.call_after_refresh(self._first_analysis)
+
+    def _after_first_screen(self) -> None:
+        if self.resume_gc:
+            self.call_after_refresh(self._resume_gc)
+        # one more frame for the chart to reach the terminal, then numpy loads here
+        self.call_after_refresh(lambda: self.call_after_refresh(self._first_analysis))
 
     def _first_analysis(self) -> None:
         if self.analysis is None:  # no key has analysed the setup yet

@@ -54,7 +54,7 @@ class FixActions:
             words = found.line(self.ascii_only)
         else:
             t = found.target
-            words = f"Fix: no one change reaches {t.angle} {t.op} {t.value_deg:g} (f: plan)"
+            words = f"Fix (f): no one change reaches {t.angle} {t.op} {t.value_deg:g}"
         self.status.fixes = words
 
     def action_fix(self) -> None:

@@ -18,6 +18,10 @@ from slopetune.engine import LoadedSetup, SetupError, load_setup, parse_setup
 
 DEMO_FILE = "marmot-overdrive.toml"
 PLAIN_TERMS = ("linux", "dumb")
+# How long the start waits for the forked child's first screen once Textual has loaded: it is
+# usually ready (numpy and one analysis against Textual's import); a slow child is not waited
+# for, its screen then follows the first frame.
+FIRST_SCREEN_WAIT_S = 0.05
 
 
 def _encoding(stream) -> str:
@@ -100,12 +104,22 @@ def run_tuner(args) -> int:
         from . import prefetch
 
         # before Textual loads: a child works out the first screen on the other core meanwhile
-        first = prefetch.start(loaded.setup, baseline.setup if baseline else None, plain)
+        child = prefetch.start(loaded.setup, baseline.setup if baseline else None, plain)
 
         from .app import SlopeTuneApp  # after the files are read: a bad file never starts Textual
 
+        first = None
+        if child is not None:
+            # the child is usually done by now: with plotext loaded too, the first frame is the
+            # whole screen, chart included (else it follows a frame later, as without a child)
+            from .widgets.load_chart import load_plotext
+
+            load_plotext()
+            if child.ready(FIRST_SCREEN_WAIT_S):
+                first, child = child.result(), None
         driver = _folding_driver(charset) if plain and sys.platform != "win32" else None
-        app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver, prefetch=first)
+        app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver, prefetch=child,
+                           first_screen=first)
         app.resume_gc = True
         app.run()
     finally:

@@ -39,7 +39,7 @@ class Fixes(NamedTuple):
         if not self.fixes:
             return ""
         sep = "; " if ascii_only else " \u00b7 "
-        return "Fix: " + sep.join(f.words for f in self.fixes) + " (f: plan)"
+        return "Fix (f): " + sep.join(f.words for f in self.fixes)
 
 
 def target_for(analysis: Analysis):

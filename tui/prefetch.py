@@ -1,11 +1,13 @@
 """The first analysis, worked out in a forked process while the parent imports Textual.
 
 Start-up is two imports in a row on one core: Textual (to paint) and numpy (to analyse), about
-0.3 s and 0.1 s here, several times that on a Pi. A child forked before Textual loads imports
-numpy and the engine, analyses the setup, and sends back only what the first screen shows (the
-chart's data and the status words: plain tuples and strings, no numpy objects), so the chart
-follows the first frame within a few milliseconds instead of a numpy import later. The parent
-then analyses on its own, after that frame, for everything that follows.
+0.1 s and 0.04 s here, several times that on a Pi. A child forked before Textual loads imports
+numpy and the engine (never Textual: `chart_data` and `status_words` are free of it), analyses the
+setup, and sends back only what the first screen shows (the chart's data and the status words:
+plain tuples and strings, no numpy objects). The parent, once Textual and plotext are in, waits a
+moment for that answer and composes it into its first frame; an answer that comes later is shown
+the moment it arrives. The parent then analyses on its own, after that frame, for everything that
+follows.
 
 Where fork is missing (Windows) or fails, nothing is started and the tuner starts as before.
 """
@@ -31,6 +33,15 @@ class Prefetch:
 
     def __init__(self, pid: int, fd: int) -> None:
         self.pid, self.fd = pid, fd
+
+    def ready(self, timeout_s: float) -> bool:
+        """Whether the answer is there to read, waiting at most `timeout_s`."""
+        import select
+
+        try:
+            return bool(select.select([self.fd], [], [], max(timeout_s, 0.0))[0])
+        except (OSError, ValueError):
+            return False
 
     def result(self) -> Optional[FirstScreen]:
         """Read the child's answer (blocks until it is written) and reap the child; None on failure."""
@@ -117,7 +128,7 @@ def _first_screen(setup, baseline_setup, ascii_only: bool) -> FirstScreen:
     from .slopes import slope_grid
     from .status_words import status_view
     from .units import Units
-    from .widgets.load_chart import chart_data
+    from .chart_data import chart_data
 
     units = Units(imperial=False, ascii_only=ascii_only)
     slopes = slope_grid(False)

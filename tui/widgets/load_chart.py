@@ -15,7 +15,7 @@ plotext (65-110 ms) and numpy are imported on the first build, after the first f
 from __future__ import annotations
 
 import math
-from typing import TYPE_CHECKING, NamedTuple, Optional
+from typing import NamedTuple, Optional
 
 from rich.style import Style
 from rich.text import Span, Text
@@ -23,12 +23,9 @@ from textual.geometry import Region, Size
 from textual.strip import Strip
 from textual.widget import Widget
 
-from ..units import Units
+from ..chart_data import ChartData, Curves, chart_data  # noqa: F401 - part of the chart's door
 from .line_strips import changed_regions, text_strip
 from .style_cache import StyleCache
-
-if TYPE_CHECKING:
-    from slopetune.engine import Analysis
 
 # plotext draws in these standard colours; `render` swaps them for the theme's styles, so the
 # numbers are tags, not colours.
@@ -48,52 +45,6 @@ SLOPE_MARK = {False: ("\u2502", "\u252c", "\u2534"), True: ("|", "+", "+")}
 MIN_WIDTH, MIN_HEIGHT = 24, 6
 NAMED_MARKS = (("B", "balance", "bal"), ("H", "handover", "hand"), ("L", "front lift", "lift"),
                ("N", "rear lift (nose over)", "nose"), ("M", "max grade", "max"))
-
-
-class Curves(NamedTuple):
-    """Front and rear normal force over the slopes where both axles touch. [display units]"""
-
-    slope_deg: tuple[float, ...]
-    front: tuple[float, ...]
-    rear: tuple[float, ...]
-
-
-class ChartData(NamedTuple):
-    """Everything one chart shows; hashable so the built chart can be cached on it."""
-
-    current: Curves
-    baseline: Optional[Curves]
-    slope_deg: float  # the setup's slope: the vertical marker
-    marks: tuple[tuple[str, float], ...]  # (letter, angle) inside the range
-    unit: str  # "g" or "oz"
-    x_range: tuple[float, float]
-    y_top: float
-
-
-def _curves(analysis: Analysis, units: Units) -> tuple[Curves, float]:
-    sweep = analysis.sweep
-    touching = (sweep.front_normal_g > 0) & (sweep.rear_normal_g > 0)
-    scale = units.factor("mass")
-    force = lambda a: tuple((a[touching] / scale).round(3).tolist())  # noqa: E731
-    slopes = tuple(sweep.slope_deg[touching].tolist())
-    return Curves(slopes, force(sweep.front_normal_g), force(sweep.rear_normal_g)), analysis.rig.mass_g / scale
-
-
-def chart_data(analysis: Analysis, units: Units, baseline: Optional[Analysis] = None) -> ChartData:
-    """What the chart shows for `analysis` (its sweep sets the slope range) and an optional baseline."""
-    current, top = _curves(analysis, units)
-    base = None
-    if baseline is not None:
-        base, base_top = _curves(baseline, units)
-        top = max(top, base_top)
-    slopes = analysis.sweep.slope_deg
-    lo, hi = float(slopes.min()), float(slopes.max())
-    a = analysis.angles_deg
-    named = {"B": a.get("balance"), "H": a.get("handover"), "L": a.get("front_lift"), "N": a.get("rear_lift"),
-             "M": a.get("max_grade") if (a.get("max_grade") or 90.0) < 90.0 else None}  # 90: never ends
-    marks = tuple((letter, round(v, 2)) for letter, v in named.items() if v is not None and lo <= v <= hi)
-    return ChartData(current, base, float(analysis.setup.terrain.slope_deg), marks, units.unit("mass"),
-                     (lo, hi), float(top))
 
 
 def nice_step(top: float, count: int) -> float:
@@ -247,6 +198,11 @@ def _line_markers(ascii_only: bool) -> tuple[str, str, str]:
     if ascii_only:
         return "*", "o", "."
     return "braille", "braille", "braille"
+
+
+def load_plotext() -> None:
+    """Import plotext now (start-up: when the first frame will draw the chart anyway)."""
+    import plotext  # noqa: F401
 
 
 def _plotext(data: ChartData, width: int, height: int, ascii_only: bool, slope_line: bool) -> str:

@@ -1,0 +1,107 @@
+"""The tuner's start: what the first frame holds and what loads before it (plumbing, not physics).
+
+The figures (how fast) are in `bench/bench_tuner.py`; these tests pin the order that makes them:
+reading a setup loads neither numpy nor Textual, the forked child works out the first screen
+without Textual, and when its answer is there the very first frame shows the chart and the words.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from slopetune.engine import analyse, load_setup
+from slopetune.tui import prefetch
+from slopetune.tui.app import SlopeTuneApp
+from slopetune.tui.chart_data import chart_data
+from slopetune.tui.slopes import slope_grid
+from slopetune.tui.status_words import status_view
+from slopetune.tui.units import Units
+
+ROOT = Path(__file__).resolve().parent.parent
+DEMO = ROOT / "setups" / "marmot-overdrive.toml"
+SIZE = (80, 24)
+needs_fork = pytest.mark.skipif(not hasattr(os, "fork"), reason="no fork here: the tuner starts without the child")
+
+
+def test_reading_a_setup_and_the_childs_work_load_no_textual_and_no_numpy_before_the_fork():
+    """The parent reads the file, parses its arguments and forks before any heavy import; the
+    child's modules (chart data, status words) stay free of Textual."""
+    code = f"""
+import sys
+from slopetune.tui import cli, app_main, prefetch, chart_data, status_words, slopes, units
+cli.tuner_parser().parse_args([{str(DEMO)!r}])
+app_main.load_setup({str(DEMO)!r})
+heavy = [m for m in ("numpy", "textual", "plotext", "tomlkit", "importlib.metadata") if m in sys.modules]
+print(",".join(heavy) or "none")
+"""
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True, cwd=ROOT)
+    assert out.stdout.strip() == "none"
+
+
+@needs_fork
+def test_prefetch_child_sends_the_first_screen_the_parent_would_work_out(monkeypatch):
+    """The forked child's answer equals the same calls made here; `ready` waits for it."""
+    monkeypatch.setenv("SLOPETUNE_PREFETCH", "1")
+    setup = load_setup(DEMO).setup
+    child = prefetch.start(setup, None, False)
+    assert child.ready(10.0)
+    first = child.result()
+    units = Units(imperial=False, ascii_only=False)
+    a = analyse(setup, slope_grid(False))
+    assert first.setup == setup
+    assert first.chart == chart_data(a, units) and first.view == status_view(a, units)
+    monkeypatch.setenv("SLOPETUNE_PREFETCH", "0")
+    assert prefetch.start(setup, None, False) is None
+
+
+def test_first_frame_holds_the_chart_and_words_when_the_first_screen_is_given(monkeypatch):
+    """With the child's answer in hand before the app starts, the chart, the flag and the words are
+    composed into the first frame: they are already there when the app's own first analysis runs."""
+    loaded = load_setup(DEMO)
+    units = Units(imperial=False, ascii_only=False)
+    a = analyse(loaded.setup, slope_grid(False))
+    first = prefetch.FirstScreen(loaded.setup, chart_data(a, units), status_view(a, units))
+    seen = {}
+    original = SlopeTuneApp._first_analysis
+
+    def spy(self):
+        seen.update(analysis=self.analysis, chart=self.chart.data, level=self.flag.level, view=self.status.view)
+        original(self)
+
+    monkeypatch.setattr(SlopeTuneApp, "_first_analysis", spy)
+
+    async def go():
+        app = SlopeTuneApp(loaded, first_screen=first)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause(0.3)
+            assert seen["analysis"] is None  # the screen was full before this process analysed anything
+            assert seen["chart"] == first.chart and seen["view"] == first.view
+            assert seen["level"] == first.view.level != "wait"
+            assert app.chart.builds >= 1 and app.analysis is not None  # then it analyses on its own
+
+    asyncio.run(go())
+
+
+def test_a_first_screen_for_another_setup_is_not_shown():
+    """A stale answer (the child worked on other values) is dropped: the app analyses its own."""
+    loaded = load_setup(DEMO)
+    other = load_setup(ROOT / "setups" / "marmot-stock.toml")
+    units = Units(imperial=False, ascii_only=False)
+    a = analyse(other.setup, slope_grid(False))
+    stale = prefetch.FirstScreen(other.setup, chart_data(a, units), status_view(a, units))
+
+    async def go():
+        app = SlopeTuneApp(loaded, first_screen=stale)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause(0.3)
+            own = analyse(loaded.setup, slope_grid(False))
+            assert app.chart.data == chart_data(own, units)
+            assert app.status.view == status_view(own, units)
+
+    asyncio.run(go())
