@@ -10,7 +10,6 @@ key, the value and what is allowed.
 
 from __future__ import annotations
 
-import hashlib
 import math
 import os
 import re
@@ -80,10 +79,20 @@ class LoadedSetup:
     data: dict = field(default_factory=dict)
     mtime_ns: Optional[int] = None
     warnings: list = field(default_factory=list)
-    # SHA-256 of the bytes read: a save compares it with the file on disk, so an outside edit that
-    # keeps the modification time (cp -p, rsync -t) is still noticed.
-    sha256: Optional[str] = None
+    # The bytes read: a save compares them with the file on disk, so an outside edit that keeps the
+    # modification time (cp -p, rsync -t) is still noticed. Kept whole (a setup file is small)
+    # rather than hashed at load: hashlib's OpenSSL import would cost every start 3-4 ms.
+    raw: Optional[bytes] = None
     bom: bool = False  # the file began with a UTF-8 byte-order mark (kept on save)
+
+    @property
+    def sha256(self) -> Optional[str]:
+        """SHA-256 of the bytes read (None for a setup not read from a file). [hex]"""
+        if self.raw is None:
+            return None
+        import hashlib
+
+        return hashlib.sha256(self.raw).hexdigest()
 
 
 def find_line(text: str, key: str) -> Optional[int]:
@@ -447,13 +456,13 @@ def read_setup_text(path) -> tuple[str, int]:
     return _decode(raw, str(path)), st.st_mtime_ns
 
 
-def file_sha256(path) -> Optional[str]:
-    """SHA-256 of a setup file's bytes as `load_setup` reads them; None when it cannot be read."""
+def file_bytes(path) -> Optional[bytes]:
+    """A setup file's bytes as `load_setup` reads them; None when it cannot be read."""
     try:
         raw, _ = _read_raw(path)
     except SetupError:
         return None
-    return hashlib.sha256(raw).hexdigest()
+    return raw
 
 
 def load_setup(path) -> LoadedSetup:
@@ -470,5 +479,4 @@ def load_setup(path) -> LoadedSetup:
     if bom:
         text = text[1:]
     setup, data, warnings = parse_setup(text, str(path))
-    return LoadedSetup(Path(path), setup, text, data, st.st_mtime_ns, warnings,
-                       hashlib.sha256(raw).hexdigest(), bom)
+    return LoadedSetup(Path(path), setup, text, data, st.st_mtime_ns, warnings, raw, bom)

@@ -17,7 +17,6 @@ change what the user set up. A change on disk since loading is found by a SHA-25
 from __future__ import annotations
 
 import dataclasses
-import hashlib
 import math
 import os
 import secrets
@@ -30,7 +29,7 @@ import tomlkit
 from tomlkit.items import AoT, Array, InlineTable, Table
 
 from slopetune.engine import LoadedSetup, Setup, SetupError, parse_setup
-from slopetune.engine.setup_file import BOM, file_sha256
+from slopetune.engine.setup_file import BOM, file_bytes
 from slopetune.engine.setup_model import FIELDS, RIGID
 
 TMP_SUFFIX = ".slopetune-tmp"
@@ -377,9 +376,9 @@ def write_atomic(path: Path, text: str) -> int:
 def _changed_on_disk(loaded: LoadedSetup, target: Path) -> bool:
     """True when the loaded file's bytes on disk are no longer the ones read (a deleted file is
     not a change: saving recreates it)."""
-    if loaded.sha256 is not None:
-        now = file_sha256(target)
-        return now is not None and now != loaded.sha256
+    if loaded.raw is not None:
+        now = file_bytes(target)
+        return now is not None and now != loaded.raw
     try:
         return os.stat(target).st_mtime_ns != loaded.mtime_ns
     except OSError:
@@ -406,7 +405,7 @@ def save_setup(loaded: Optional[LoadedSetup], setup: Setup, path=None, *, force:
         raise LinkToNowhere(f"{target}: a link to {real}, which does not exist",
                             f"{target.name} is a link to {real}, which does not exist. Create that file?")
     if (not force and loaded is not None and loaded.path is not None
-            and (loaded.sha256 is not None or loaded.mtime_ns is not None)
+            and (loaded.raw is not None or loaded.mtime_ns is not None)
             and Path(loaded.path).resolve() == target.resolve() and _changed_on_disk(loaded, target)):
         raise FileChangedOnDisk(f"{target}: changed on disk since it was loaded",
                                 f"{target.name} changed on disk since it was opened. Overwrite it?")
@@ -424,9 +423,8 @@ def save_setup(loaded: Optional[LoadedSetup], setup: Setup, path=None, *, force:
         raise SaveError(f"{target}: not saved: in this file's layout {differs} would read back different; "
                         f"nothing lost: {ELSEWHERE}")
     mtime = write_atomic(target, text)
-    raw = text.encode("utf-8")
     return LoadedSetup(target, check, text[1:] if text.startswith(BOM) else text, data, mtime, [],
-                       hashlib.sha256(raw).hexdigest(), text.startswith(BOM))
+                       text.encode("utf-8"), text.startswith(BOM))
 
 
 def set_keys(path, values: dict) -> LoadedSetup:
