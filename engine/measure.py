@@ -7,6 +7,7 @@ References
    by lifting one axle).
 .. [3] Serway & Beichner, *Physics for Scientists and Engineers*, 5th ed., ch. 5 (static friction
    on an incline at the point of sliding: ``μ_s = tan α``).
+.. [4] T. D. Gillespie, *Fundamentals of Vehicle Dynamics*, SAE, 1992, ch. 2 (axle loads on a grade).
 
 Plausibility checks (`bias_checks`, `lift_checks`, `slide_angle_checks`) say which reading looks
 wrong before a value reaches a setup: a refusal where the reading cannot be right, a warning where
@@ -25,6 +26,7 @@ from typing import Optional
 import numpy as np
 
 from .setup_model import FIELDS
+from .slope_statics import axle_loads_g
 
 # Decimals a measured value is stored and shown with: about what the readings resolve (a kitchen
 # scale to 1 g of a 2 kg rig is 0.05 %; a phone inclinometer to 0.5 deg moves mu by about 0.02).
@@ -33,14 +35,19 @@ DIGITS = {"rig.front_bias_pct": 1, "rig.cg_height_mm": 1, "grip.mu_static": 2}
 # The highest static friction a setup file takes (one place: the file's own rule).
 MU_STATIC_MAX = FIELDS["grip.mu_static"].hi
 
+# One axle on the board: which axle is blocked on it, and which way the rig's nose points.
+AXLES = ("front", "rear")
+FACINGS = ("up", "down")
+
 
 @dataclass(frozen=True)
 class ReadingCheck:
     """One reading that looks wrong: which (`reading`, `index` of a lift), how bad, and why.
 
-    `reading` is one of "total", "front", "level", "lift", "axle", "wheelbase", "angle" (the caller
-    names it in its own words: an option on the command line, a field on the screen); `index` is the
-    lift's position as given (None for the others). `why` is one line without the reading's name.
+    `reading` is one of "total", "front", "level", "lift", "axle", "wheelbase", "angle", "rig" (the
+    caller names it in its own words: an option on the command line, a field on the screen);
+    `index` is the lift's position as given (None for the others). `why` is one line without the
+    reading's name.
     """
 
     reading: str
@@ -126,6 +133,122 @@ def mu_from_slide_angle(slide_angle_deg):
     return np.tan(np.radians(np.asarray(slide_angle_deg, dtype=float)))
 
 
+def _one_axle_case(axle: str, facing: str) -> None:
+    if axle not in AXLES:
+        raise ValueError(f"axle must be one of {', '.join(AXLES)}, not {axle!r}")
+    if facing not in FACINGS:
+        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+
+
+def mu_one_axle_from_slide_angle(slide_angle_deg, wheelbase_mm, cg_from_rear_mm, cg_height_mm, axle, facing):
+    """Static friction of ONE axle from the tilt angle at which the rig slides, the other axle
+    standing on a low-friction sheet.
+
+    Parameters
+    ----------
+    slide_angle_deg : array_like
+        Board angle at the first slide, ``α``. [deg]
+    wheelbase_mm : array_like
+        ``L``. [mm]
+    cg_from_rear_mm : array_like
+        CG ahead of the rear axle, ``b``, of the rig as it stood on the board (ballast included). [mm]
+    cg_height_mm : array_like
+        CG height above the board, tyres included, ``h``. [mm]
+    axle : {"front", "rear"}
+        The axle whose blocked wheels stand on the board's surface.
+    facing : {"up", "down"}
+        The rig's nose up the board (it stands as on a climb, slope ``+α``) or down it (``−α``).
+
+    Returns
+    -------
+    ndarray or float
+        ``μ_s`` of that axle. [-] NaN where the case cannot happen: an angle outside (0°, 90°), a
+        geometry that is no rig (``L`` or ``h`` not above 0, ``b`` outside (0, L)), the measured
+        axle off the board (no load: it cannot hold anything), or the other axle off the board
+        (the rig tips over before it can slide). `slide_angle_checks` says which.
+
+    Notes
+    -----
+    The other axle's friction is taken as **zero**: a smooth plastic sheet on glass under it is far
+    below a tyre on the board, and what it does carry would make this μ read high. Along the board
+    the blocked axle then holds the whole ``W sin α``. Ground forces act in the board's plane, so
+    taking moments about a contact gives the normal forces whoever carries the friction: the
+    grade-load equation [4]_ (`slope_statics.axle_loads_g`) at ``θ = +α`` facing up, ``−α`` down::
+
+        N_f = W (b cos θ − h sin θ)/L,   N_r = W cos θ − N_f
+        μ_axle = W sin α / N_axle
+
+    The weight cancels. In closed form, with ``d`` the CG's distance from the *other* axle (``b``
+    for the front, ``L − b`` for the rear) and ``s = +1`` when the measured axle is the uphill one
+    (front facing up, rear facing down), ``−1`` when it is downhill::
+
+        μ = L tan α / (d − s h tan α)
+
+    The two axles' loads add up to ``W cos α``, so at one angle and facing
+    ``1/μ_front + 1/μ_rear = 1/tan α``: both axles blocked give back ``μ_s = tan α`` [3]_.
+    """
+    _one_axle_case(axle, facing)
+    alpha = np.asarray(slide_angle_deg, dtype=float)
+    wheelbase = np.asarray(wheelbase_mm, dtype=float)
+    b = np.asarray(cg_from_rear_mm, dtype=float)
+    h = np.asarray(cg_height_mm, dtype=float)
+    slope = alpha if facing == "up" else -alpha
+    # per unit weight: W cancels from W sin α / N
+    front, rear = axle_loads_g(1.0, wheelbase, b, h, slope)
+    n_axle, n_other = (front, rear) if axle == "front" else (rear, front)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        mu = np.sin(np.radians(alpha)) / n_axle
+        ok = ((alpha > 0) & (alpha < 90) & (wheelbase > 0) & (h > 0) & (b > 0) & (b < wheelbase)
+              & (n_axle > 0) & (n_other > 0))
+    out = np.where(ok, mu, np.nan)
+    return float(out) if out.ndim == 0 else out
+
+
+def one_axle_top_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, axle, facing, mu_max=MU_STATIC_MAX):
+    """The steepest slide angle that gives a one-axle mu a setup takes, and what sets it.
+
+    Parameters
+    ----------
+    wheelbase_mm, cg_from_rear_mm, cg_height_mm : float
+        ``L``, ``b``, ``h`` of the rig as it stood on the board. [mm]
+    axle, facing : str
+        As `mu_one_axle_from_slide_angle`.
+    mu_max : float
+        Highest mu allowed. [-]
+
+    Returns
+    -------
+    top_deg : float
+        [deg] Angles above 0 and up to it (``"mu"``), or below it (``"tip"``), are possible.
+    limit : str
+        ``"mu"``: the angle where that axle's mu reaches `mu_max`; ``"tip"``: the angle where the
+        other axle lifts (the rig tips over the measured axle, so no slide is seen beyond it).
+
+    Notes
+    -----
+    ``μ = L t/(d − s h t)`` (``t = tan α``; see `mu_one_axle_from_slide_angle`) rises with ``t``.
+    Measured axle uphill (``s = +1``): ``μ = μ_max`` at ``t = μ_max d/(L + μ_max h)``, always below
+    the angle ``t = d/h`` where that axle itself lifts; the other axle never lifts. Measured axle
+    downhill (``s = −1``): the uphill axle lifts at ``t = (L − d)/h`` (the front- or rear-lift
+    angle of the grade-load equation [4]_); ``μ`` stays below ``L/h`` whatever the angle, so it
+    reaches ``μ_max`` first only where ``L > μ_max h``, at ``t = μ_max d/(L − μ_max h)``. Not
+    ``atan(μ_max)``: with one axle blocked, the uphill one reaches a high mu at a gentle angle and
+    the downhill one needs a steep board for a modest mu.
+    """
+    _one_axle_case(axle, facing)
+    wheelbase, h = float(wheelbase_mm), float(cg_height_mm)
+    d = float(cg_from_rear_mm) if axle == "front" else wheelbase - float(cg_from_rear_mm)
+    uphill = (axle == "front") == (facing == "up")
+    if uphill:
+        return math.degrees(math.atan(mu_max * d / (wheelbase + mu_max * h))), "mu"
+    tip = math.degrees(math.atan2(wheelbase - d, h))
+    if wheelbase > mu_max * h:
+        at_max = math.degrees(math.atan(mu_max * d / (wheelbase - mu_max * h)))
+        if at_max < tip:
+            return at_max, "mu"
+    return tip, "tip"
+
+
 def bias_checks(front_reading_g: float, total_g: float) -> list[ReadingCheck]:
     """Why a front-axle reading cannot give a front bias (empty: it can)."""
     if not front_reading_g > 0:
@@ -191,11 +314,42 @@ def lift_checks(weight_g, wheelbase_mm, axle_height_mm, level_front_g, lift_mm, 
     return out
 
 
-def slide_angle_checks(slide_angle_deg: float, mu_max: float = MU_STATIC_MAX) -> list[ReadingCheck]:
-    """Why a slide angle cannot give a static mu a setup takes (mu above 0 and at most `mu_max`)."""
-    top = math.degrees(math.atan(mu_max))
-    if not 0 < slide_angle_deg <= top:
+def slide_angle_checks(slide_angle_deg: float, mu_max: float = MU_STATIC_MAX, *, axle: str = "both",
+                       facing: Optional[str] = None, wheelbase_mm: Optional[float] = None,
+                       cg_from_rear_mm: Optional[float] = None,
+                       cg_height_mm: Optional[float] = None) -> list[ReadingCheck]:
+    """Why a slide angle cannot give a static mu a setup takes (mu above 0 and at most `mu_max`).
+
+    Both axles blocked (`axle` "both"): ``μ = tan α`` [3]_, so the angle must lie in
+    (0, atan(mu_max)]. One axle (`axle` "front" or "rear", the other on a low-friction sheet; give
+    `facing` and the rig): the bound is `one_axle_top_angle_deg`, the mu limit or the angle where
+    the rig tips over the measured axle, whichever comes first. A geometry that is no rig is
+    refused as reading "rig".
+    """
+    if axle == "both":
+        top = math.degrees(math.atan(mu_max))
+        if not 0 < slide_angle_deg <= top:
+            return [ReadingCheck("angle", None, True,
+                                 f"{_g(slide_angle_deg)} deg: must be above 0 and at most {top:.1f} deg "
+                                 f"(mu_static at most {mu_max:g}, the setup file's limit)")]
+        return []
+    _one_axle_case(axle, facing or "")
+    wb, b, h = (float("nan") if v is None else float(v) for v in (wheelbase_mm, cg_from_rear_mm, cg_height_mm))
+    if not (wb > 0 and h > 0 and 0 < b < wb):
+        return [ReadingCheck("rig", None, True,
+                             f"wheelbase {_g(wb)} mm, CG {_g(b)} mm ahead of the rear axle and {_g(h)} mm high: "
+                             "needs a wheelbase and CG height above 0 and the CG between the axles")]
+    top, limit = one_axle_top_angle_deg(wb, b, h, axle, facing, mu_max)
+    where = "uphill" if (axle == "front") == (facing == "up") else "downhill"
+    if limit == "mu" and not 0 < slide_angle_deg <= top:
         return [ReadingCheck("angle", None, True,
-                             f"{_g(slide_angle_deg)} deg: must be above 0 and at most {top:.1f} deg "
-                             f"(mu_static at most {mu_max:g}, the setup file's limit)")]
+                             f"{_g(slide_angle_deg)} deg: must be above 0 and at most {top:.1f} deg (there "
+                             f"the {axle} axle alone, blocked {where}, reaches mu_static {mu_max:g}, the "
+                             "setup file's limit)")]
+    if limit == "tip" and not 0 < slide_angle_deg < top:
+        other = "rear" if axle == "front" else "front"
+        over = "its nose" if facing == "down" else "backwards"
+        return [ReadingCheck("angle", None, True,
+                             f"{_g(slide_angle_deg)} deg: must be above 0 and below {top:.1f} deg (there "
+                             f"the {other} axle lifts and the rig tips over {over} before it can slide)")]
     return []

@@ -8,13 +8,14 @@ stderr and the result is still given.
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 from typing import Optional
 
 from slopetune.engine import SetupError, check_value, load_setup
 from slopetune.engine.measure import (
-    DIGITS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
-    mu_from_slide_angle, slide_angle_checks,
+    DIGITS, FACINGS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
+    mu_from_slide_angle, mu_one_axle_from_slide_angle, slide_angle_checks,
 )
 from slopetune.engine.setup_model import rule_for
 
@@ -31,7 +32,8 @@ axle height a reading needs from a setup file; --write FILE stores the result in
   cg-height  ISO 10392 axle lift: raise the rear axle by H mm (one or more lifts),
              read the front scale each time: h = r + L (Wf1 - Wf0) / (W tan(asin(H/L)))
              The wheels must roll freely (driveline out) and the suspension be locked.
-  mu         tilt board, wheels blocked, raise until the rig slides: mu_s = tan(angle)
+  mu         tilt board, wheels blocked, raise until the rig slides: mu_s = tan(angle);
+             one axle alone with the other on a low-friction sheet (see measure mu --help)
   slip-test  slip stiffness c of one axle: one driveshaft out, turns counted on a board
   slip       ramp test: the range of c that fits the handover seen on a board (a check)
 
@@ -55,7 +57,41 @@ The front reading must grow as the rear rises (the CG sits above the axles): rea
 fall are warned about, and a CG below the axle height is refused.
 """
 
+MU_HELP = """\
+Static friction by slide angle. Block the wheels so they cannot turn, stand the rig on a board and
+raise one end slowly until the rig starts to slide; read the board's angle (a phone inclinometer).
+
+  --axle both (default)  all four wheels on the board: mu_s = tan(angle), stored as
+                         grip.mu_static. A mix of the two axles, weighted by their loads.
+  --axle front|rear      that axle alone, stored as grip.front_mu_static / grip.rear_mu_static.
+                         Lay a thin low-friction sheet (a smooth plastic sheet on a glass pane)
+                         on the board under the OTHER axle's wheels: the blocked axle then holds
+                         the whole pull down the board (the sheet's own friction is taken as
+                         zero; what it does carry makes the result read high). Give --facing:
+      --facing up        the rig's nose points up the board, as on a climb
+      --facing down      its nose points down the board
+                         No default: the load on the blocked axle, so its mu, depends on it.
+
+  one axle:  mu = W sin(a) / N_axle    (W cancels; t = +a facing up, -a facing down)
+             N_front = W (b cos t - h sin t) / L,  N_rear = W cos t - N_front
+             (axle loads on a grade, Gillespie ch. 2). L, b and h are the rig as it stood on
+             the board: --wheelbase, --front-bias (b = bias x L), --cg-height, or the setup
+             file's (--from or --write) rig with its ballast items.
+
+With the blocked axle downhill the board must go steeper for the same mu, and a degree of error in
+the reading then moves mu less; but the uphill axle lifts at some angle and the rig tips over
+instead of sliding. A slide angle is refused when its mu is above the file's limit of 5, or at or
+past that tip.
+"""
+
 MU_KEYS = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}
+# What the blocked axle's mu is in closed form (engine.measure.mu_one_axle_from_slide_angle), printed
+# with the result: d is b for the front, L - b for the rear; the sign of h is + for the downhill axle.
+ONE_AXLE_FORMULA = {
+    ("front", "up"): "L tan a / (b - h tan a)", ("front", "down"): "L tan a / (b + h tan a)",
+    ("rear", "up"): "L tan a / (L - b + h tan a)", ("rear", "down"): "L tan a / (L - b - h tan a)",
+}
+RIG_OPTIONS = ("facing", "wheelbase", "front_bias", "cg_height")
 
 
 def _lift_pair(text: str):
@@ -92,10 +128,19 @@ def register(sub) -> None:
     c.add_argument("--axle-height", type=number, metavar="MM",
                    help="axle centre above the ground = loaded tyre radius [mm] (default: the file's mean tyre radius)")
 
-    m = kinds.add_parser("mu", help="static friction from a tilt-board slide angle")
+    m = kinds.add_parser("mu", help="static friction from a tilt-board slide angle", description=MU_HELP,
+                         formatter_class=argparse.RawDescriptionHelpFormatter)
     m.add_argument("--angle", type=number, required=True, metavar="DEG", help="board angle at the first slide [deg]")
     m.add_argument("--axle", choices=tuple(MU_KEYS), default="both",
-                   help="which mu to write: the common one (both) or a per-axle override")
+                   help="both axles on the board (default; tan of the angle), or one axle alone with the "
+                        "other on a low-friction sheet (its per-axle override)")
+    m.add_argument("--facing", choices=FACINGS,
+                   help="with --axle front|rear, needed: the rig's nose up the board (up) or down it (down)")
+    m.add_argument("--wheelbase", type=number, metavar="MM", help="with --axle front|rear [mm] (default: the file's)")
+    m.add_argument("--front-bias", type=number, metavar="PCT",
+                   help="with --axle front|rear: the rig on the board [%%] (default: the file's, ballast included)")
+    m.add_argument("--cg-height", type=number, metavar="MM",
+                   help="with --axle front|rear: the rig on the board [mm] (default: the file's, ballast included)")
 
     for q in (b, c, m):
         _common(q)
@@ -112,6 +157,7 @@ class _Source:
         self.path: Optional[str] = args.source or args.write
         self._loaded = None
         self.used: list[str] = []
+        self.note = ""  # said after the file's name on the "from FILE" line
 
     def setup(self):
         if self.path is None:
@@ -130,7 +176,18 @@ class _Source:
         self.used.append(words)
         if key == "axle":
             return (setup.rig.tire_dia_front_mm + setup.rig.tire_dia_rear_mm) / 4.0
+        if key.startswith("effective."):  # the rig as it stands now: measured rig plus its ballast
+            from slopetune.engine.ballast import combine_ballast
+
+            _mass, x, z = combine_ballast(setup.rig)
+            return 100.0 * x / setup.rig.wheelbase_mm if key == "effective.front_bias_pct" else z
         return setup.value(key)
+
+    def ballast_note(self) -> str:
+        """Said when the rig taken from the file includes ballast items."""
+        setup = self.setup()
+        n = len(setup.rig.ballast) if setup is not None else 0
+        return f", its {n} ballast item{'s' if n > 1 else ''} included" if n else ""
 
 
 # A reading below this is a typo or an underflow (5e-324), not a measurement [g or mm].
@@ -161,7 +218,8 @@ def _names(args, check: ReadingCheck) -> str:
         h, g = args.lift[check.index]
         return f"--lift {h:g}:{g:g}"
     return {"front": "--front", "total": "--total", "level": "--level-front", "lift": "--lift",
-            "axle": "--axle-height", "wheelbase": "--wheelbase", "angle": "--angle"}[check.reading]
+            "axle": "--axle-height", "wheelbase": "--wheelbase", "angle": "--angle",
+            "rig": "--wheelbase, --front-bias, --cg-height"}[check.reading]
 
 
 def _judge(args, checks: list[ReadingCheck]) -> None:
@@ -175,6 +233,43 @@ def _judge(args, checks: list[ReadingCheck]) -> None:
 
 def _fixed(key: str, value: float) -> str:
     return f"{value:.{DIGITS[key]}f}"
+
+
+def _mu(args, source: _Source) -> tuple[str, float, str]:
+    """The static mu of `measure mu`: tan of the angle for both axles, the one-axle statics for one."""
+    key = MU_KEYS[args.axle]
+    if args.axle == "both":
+        unused = [f"--{name.replace('_', '-')}" for name in RIG_OPTIONS if getattr(args, name) is not None]
+        if unused:
+            print(f"slopetune measure mu: warning: {', '.join(unused)} not used with --axle both "
+                  "(tan of the angle whatever the rig and its facing)", file=sys.stderr)
+        _judge(args, slide_angle_checks(args.angle))
+        value = round(float(mu_from_slide_angle(args.angle)), DIGITS["grip.mu_static"])
+        return key, value, f"static mu {_fixed('grip.mu_static', value)} (tan {args.angle:g} deg)"
+    if args.facing is None:
+        raise ArgumentRefused(f"--facing up|down is needed with --axle {args.axle}: the rig's nose up the board "
+                              "or down it (the blocked axle's load depends on it)")
+    wb = _checked(source.value(args.wheelbase, "--wheelbase", "rig.wheelbase_mm", "the wheelbase"),
+                  "--wheelbase", "rig.wheelbase_mm")
+    bias = _checked(source.value(args.front_bias, "--front-bias", "effective.front_bias_pct", "the front bias"),
+                    "--front-bias", "rig.front_bias_pct")
+    height = _checked(source.value(args.cg_height, "--cg-height", "effective.cg_height_mm", "the CG height"),
+                      "--cg-height", "rig.cg_height_mm")
+    if args.front_bias is None or args.cg_height is None:
+        source.note = source.ballast_note()
+    b = bias / 100.0 * wb
+    _judge(args, slide_angle_checks(args.angle, axle=args.axle, facing=args.facing, wheelbase_mm=wb,
+                                    cg_from_rear_mm=b, cg_height_mm=height))
+    mu = mu_one_axle_from_slide_angle(args.angle, wb, b, height, args.axle, args.facing)
+    if not math.isfinite(mu):  # the checks above refuse these; a hair's breadth at a tip angle may remain
+        raise ArgumentRefused(f"--angle {args.angle:g}: this rig cannot slide on the {args.axle} axle alone there")
+    value = round(mu, DIGITS["grip.mu_static"])
+    other = "rear" if args.axle == "front" else "front"
+    text = (f"{args.axle} static mu {_fixed('grip.mu_static', value)} (W sin a / N_{args.axle}: {args.axle} axle "
+            f"alone, {other} on the sheet, rig facing {args.facing} the board)\n"
+            f"  mu = {ONE_AXLE_FORMULA[args.axle, args.facing]} with a {args.angle:g} deg, L {wb:g} mm, "
+            f"b {b:.1f} mm, h {height:.1f} mm")
+    return key, value, text
 
 
 def run(args) -> int:
@@ -203,10 +298,7 @@ def run(args) -> int:
         n = len(lifts)
         text = f"CG height {_fixed(key, value)} mm (ISO 10392 axle lift, {n} lift{'s' if n > 1 else ''})"
     else:
-        _judge(args, slide_angle_checks(args.angle))
-        key = MU_KEYS[args.axle]
-        value = round(float(mu_from_slide_angle(args.angle)), DIGITS["grip.mu_static"])
-        text = f"static mu {_fixed('grip.mu_static', value)} (tan {args.angle:g} deg)"
+        key, value, text = _mu(args, source)
         setup = source.setup()
         problem = setup is not None and check_value(setup, key, value)
         if problem:
@@ -219,7 +311,7 @@ def run(args) -> int:
                                   f"which {source.path} refuses: {problem}")
     print(text)
     if source.used:
-        print(f"  ({', '.join(source.used)} from {source.path})")
+        print(f"  ({', '.join(source.used)} from {source.path}{source.note})")
         setup = source.setup()
         if args.kind in ("bias", "cg-height") and setup.rig.ballast and args.total is None:
             n = len(setup.rig.ballast)
