@@ -92,6 +92,19 @@ MUTANTS = (
     M("M04", "measure.py", "return np.tan(np.radians(", "return np.sin(np.radians(", "sin for tan: mu"),
     M("M05", "measure.py", "np.dot(x, delta) / np.dot(x, x)", "np.sum(delta) / np.sum(x)",
       "wrong fit: ratio of sums for least squares"),
+    # one axle on the board, the other on a low-friction sheet (Gillespie ch. 2 grade loads)
+    M("M06", "measure.py", "front, rear = axle_loads_g(1.0, wheelbase, b, h, slope)",
+      "front, rear = axle_loads_g(1.0, wheelbase, b, 0.0 * h, slope)", "dropped term: h sin α (load transfer)"),
+    M("M07", "measure.py", 'slope = alpha if facing == "up" else -alpha', "slope = alpha",
+      "wrong branch: facing ignored"),
+    M("M08", "measure.py", 'n_axle, n_other = (front, rear) if axle == "front" else (rear, front)',
+      'n_axle, n_other = (rear, front) if axle == "front" else (front, rear)', "per-axle swap: one-axle load"),
+    M("M09", "measure.py", "mu = np.sin(np.radians(alpha)) / n_axle", "mu = np.tan(np.radians(alpha)) / n_axle",
+      "tan for sin: pull along the board"),
+    M("M10", "measure.py", "& (n_axle > 0) & (n_other > 0))", "& (n_axle > 0))",
+      "dropped term: the rig tips over the measured axle"),
+    M("M11", "measure.py", "return math.degrees(math.atan(mu_max * d / (wheelbase + mu_max * h))), \"mu\"",
+      "return math.degrees(math.atan(mu_max)), \"mu\"", "wrong constant: atan(mu_max) bound for one axle"),
 
     # --- analysis: the model built from a setup, named angles -----------------------------------
     M("A01", "analysis.py", "st.sidehill_slide_angle_deg(min(model.mu_f[0], model.mu_r[0]))",

@@ -33,6 +33,7 @@ ROOT = Path(__file__).resolve().parents[1]
 TEST_FILES = (
     "tests/test_slip_definitions.py",
     "tests/test_measure.py",
+    "tests/test_measure_one_axle.py",
     "tests/test_statics.py",
     "tests/test_tyre_slip.py",
     "tests/test_slope_slip.py",
