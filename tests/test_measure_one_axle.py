@@ -290,6 +290,9 @@ def test_cli_both_axles_unchanged_and_ignores_the_rig(tmp_path, capsys):
     code, out, err = run(capsys, "measure", "mu", "--angle", "40", "--facing", "down", "--cg-height", "30")
     assert code == 0 and out == "static mu 0.84 (tan 40 deg)\n"
     assert err.count("\n") == 1 and "--facing, --cg-height not used with --axle both" in err
+    # a refused angle is still one line, without the warning
+    err = one_line_error(capsys, "measure", "mu", "--angle", "80", "--facing", "up")
+    assert "at most 78.7 deg" in err
 
 
 # ---- the command line, round trip into a copy of the overdrive demo -----------------------------

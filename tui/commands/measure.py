@@ -24,9 +24,10 @@ from ._args import ArgumentRefused, number
 KINDS = ("bias", "cg-height", "mu", "slip", "slip-test")
 
 HELP = """\
-Turn bench measurements into setup values. --from FILE takes the total weight, wheelbase and
-axle height a reading needs from a setup file; --write FILE stores the result in a setup file
-(rounded as printed; comments and your own keys are kept; the file is replaced atomically).
+Turn bench measurements into setup values. --from FILE takes what a reading needs and you did not
+give (total weight, wheelbase, axle height; front bias and CG height with the ballast for one
+axle's mu) from a setup file; --write FILE stores the result in a setup file (rounded as printed;
+comments and your own keys are kept; the file is replaced atomically).
 
   bias       front axle on a scale, rig level: front bias = front reading / total  [%]
   cg-height  ISO 10392 axle lift: raise the rear axle by H mm (one or more lifts),
@@ -158,6 +159,7 @@ class _Source:
         self._loaded = None
         self.used: list[str] = []
         self.note = ""  # said after the file's name on the "from FILE" line
+        self.warnings: list[str] = []  # one line each on stderr, once the result stands
 
     def setup(self):
         if self.path is None:
@@ -240,9 +242,9 @@ def _mu(args, source: _Source) -> tuple[str, float, str]:
     key = MU_KEYS[args.axle]
     if args.axle == "both":
         unused = [f"--{name.replace('_', '-')}" for name in RIG_OPTIONS if getattr(args, name) is not None]
-        if unused:
-            print(f"slopetune measure mu: warning: {', '.join(unused)} not used with --axle both "
-                  "(tan of the angle whatever the rig and its facing)", file=sys.stderr)
+        if unused:  # said once the value stands, so a refusal stays one line
+            source.warnings.append(f"{', '.join(unused)} not used with --axle both "
+                                   "(tan of the angle whatever the rig and its facing)")
         _judge(args, slide_angle_checks(args.angle))
         value = round(float(mu_from_slide_angle(args.angle)), DIGITS["grip.mu_static"])
         return key, value, f"static mu {_fixed('grip.mu_static', value)} (tan {args.angle:g} deg)"
@@ -309,6 +311,8 @@ def run(args) -> int:
                            "check the angle, or measure kinetic mu again)")
             raise ArgumentRefused(f"--angle {args.angle:g}: gives {key.split('.')[-1]} {value:g}, "
                                   f"which {source.path} refuses: {problem}")
+    for warning in source.warnings:
+        print(f"slopetune measure {args.kind}: warning: {warning}", file=sys.stderr)
     print(text)
     if source.used:
         print(f"  ({', '.join(source.used)} from {source.path}{source.note})")
