@@ -312,3 +312,21 @@ def test_accepting_a_plan_asks_before_replacing_a_pinned_baseline(tmp_path):
             assert app.setup.rig.cg_height_mm != 70.0
 
     run(go())
+
+
+def test_help_from_the_tuner_lists_its_own_keys_undo_and_redo_included():
+    """The help reads the keys before it covers the tuner: undo and redo, which only work on the
+    tuner's screen, are listed with the rest (and the framework's own keys are not)."""
+    from textual.widgets import Static
+
+    async def go():
+        app = _app(DEMO)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            await pilot.press("f1")
+            await pilot.pause()
+            keys = str(app.screen.query_one("#help-keys", Static).render())
+            assert "Ctrl+Z/z" in keys and "Undo" in keys and "Ctrl+Y/Z" in keys and "Redo" in keys
+            assert "Save" in keys and "Quit" in keys and "palette" not in keys.lower()
+
+    run(go())

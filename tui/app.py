@@ -96,7 +96,7 @@ class TunerScreen(Screen):
                 yield status
         yield Static(f"Terminal too small: slopetune needs at least {MIN_COLUMNS}x{MIN_ROWS}.\n"
                      "Make the window larger; your setup is kept.", id="too-small", markup=False)
-        yield Footer()
+        yield Footer(show_command_palette=False)
 
     class Ready(Message):
         """The screen's widgets are mounted."""
@@ -111,6 +111,11 @@ class TunerScreen(Screen):
         self.set_class(small, "-too-small")
         self.set_class(width >= 110, "-wide")
         self.set_class(width < 80 or height < 24, "-cramped")
+        # the palette's key needs room the tuner's own keys use at 80 columns (Help lists it)
+        footer, wide = self.query_one(Footer), width >= 90
+        if footer.show_command_palette != wide:
+            footer.show_command_palette = wide
+            footer.refresh(recompose=True)
         if small:
             self.set_focus(None)  # no edits the user cannot see
         elif self.focused is None:

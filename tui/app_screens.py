@@ -54,7 +54,11 @@ class ScreenActions:
 
     def action_help(self) -> None:
         """Keys, what the chart and flags mean, and the cautions."""
-        self._push("slopetune.tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only), None, "help")
+        from .screens.help import binding_rows
+
+        rows = binding_rows(self.screen)  # now, while the keys' own screen is the active one
+        self._push("slopetune.tui.screens.help", "HelpScreen", lambda cls: cls(ascii_only=self.ascii_only, rows=rows),
+                   None, "help")
 
     def action_measure(self) -> None:
         """Turn scale readings into front bias, CG height and mu."""

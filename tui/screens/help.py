@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Optional
+
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical, VerticalScroll
@@ -22,7 +24,8 @@ FORM_TEXT = (
     "Ctrl+Z or z undoes the last change (steps, typed values, ballast, an accepted plan, a "
     "measurement); Ctrl+Y or Z does it again. The title's UNSAVED follows.\n"
     "When the flag is up, a Fix line under the status names the smallest change of each lever that "
-    "clears it (the planner's answers); f opens the planner with that target."
+    "clears it (the planner's answers); f opens the planner with that target.\n"
+    "Ctrl+P opens the command palette: every action by name (shown in the footer from 90 columns)."
 )
 
 CHART_TEXT = (
@@ -134,9 +137,12 @@ class HelpScreen(ModalScreen[None]):
         Binding("end", "scroll('end')", "Bottom", show=False, id="help.end"),
     ]
 
-    def __init__(self, ascii_only: bool = False) -> None:
+    def __init__(self, ascii_only: bool = False, rows: Optional[list[tuple[str, str]]] = None) -> None:
+        """`rows`: the keys to list, read before this screen covers the one they belong to (once it
+        is up, keys that only work on that screen, such as undo, no longer count as active)."""
         super().__init__()
         self.ascii_only = ascii_only
+        self._rows = rows
 
     def _text(self, text: str) -> str:
         return ascii_fold(text) if self.ascii_only else text
@@ -158,9 +164,11 @@ class HelpScreen(ModalScreen[None]):
 
     def on_mount(self) -> None:
         self.set_class(self.ascii_only, "-ascii")
-        stack = self.app.screen_stack
-        below = stack[-2] if len(stack) > 1 and stack[-1] is self else None
-        rows = binding_rows(below) if below is not None else []
+        rows = self._rows
+        if rows is None:
+            stack = self.app.screen_stack
+            below = stack[-2] if len(stack) > 1 and stack[-1] is self else None
+            rows = binding_rows(below) if below is not None else []
         if rows:
             width = min(max(len(k) for k, _ in rows), 24)
             lines = [f"  {keys:<{width}}  {description}" for keys, description in rows]
