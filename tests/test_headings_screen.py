@@ -103,16 +103,20 @@ async def _unchanged():
 
 
 def test_heading_field_steps_round_the_circle():
-    """The form's heading row steps 5 deg and wraps past 180 to -175 (no dead end at the range)."""
+    """The form's heading row steps 5 deg (coarse 45 deg, onto the diagonals and across) and wraps
+    past 180 to -175 (no dead end at the range)."""
     setup = load_setup(DEMO).setup.with_value("terrain.heading_deg", 175.0)
     row = next(r for r in ff.build_rows(setup) if r.key == "terrain.heading_deg")
     edit = ff.step(setup, row, 1)
     assert edit.error is None and edit.setup.terrain.heading_deg == 180.0
     edit = ff.step(edit.setup, row, 1)
     assert edit.setup.terrain.heading_deg == -175.0
-    edit = ff.step(edit.setup, row, -10)
-    assert edit.setup.terrain.heading_deg == 135.0
-    assert ff.shown_value(edit.setup, row, Units())[0] == "135"
+    edit = ff.step(edit.setup, row, -ff.COARSE)
+    assert edit.setup.terrain.heading_deg == 140.0
+    assert ff.shown_value(edit.setup, row, Units())[0] == "140"
+    across = ff.step(load_setup(DEMO).setup, row, ff.COARSE)
+    assert across.setup.terrain.heading_deg == 45.0
+    assert ff.step(across.setup, row, ff.COARSE).setup.terrain.heading_deg == 90.0
     assert ff.set_typed(edit.setup, row, "270", Units()).error  # refused, with the reason
 
 
@@ -124,3 +128,30 @@ def test_uphill_words_follow_the_heading_convention():
     assert uphill_words(30, 180) == "Uphill: behind"
     assert uphill_words(30, 45) == "Uphill: ahead and to the left"
     assert uphill_words(-30, 0) == "Uphill: behind"
+
+
+def test_tuner_words_and_marks_on_a_heading_say_the_named_angles_are_for_a_straight_climb():
+    """Off straight up the sweep and the verdict follow the heading (MODEL section 8) but the named
+    angles are those of a straight climb: the words say so, no distance to them is given, the chart
+    drops their marks, and no fix is offered while the flag is down. Plumbing, not physics."""
+    from slopetune.engine import analyse
+    from slopetune.tui.chart_data import chart_data
+    from slopetune.tui.fixes import target_for
+    from slopetune.tui.slopes import slope_grid
+    from slopetune.tui.status_words import status_view
+    from slopetune.tui.units import Units
+
+    s0 = load_setup(DEMO).setup
+    units = Units(ascii_only=True)
+    straight = analyse(s0, slope_grid(False))
+    words = " | ".join(status_view(straight, units).lines)
+    assert "climbing" in words and "straight up" not in words and "to go" in words
+    assert chart_data(straight, units).marks  # B, H, M, L at heading 0
+    across = analyse(s0.with_value("terrain.heading_deg", 90.0), slope_grid(False))
+    view = status_view(across, units)
+    words = " | ".join(view.lines)
+    assert "on heading +90 deg" in words and "climbing" not in words
+    assert "Handover 22.1 deg at 7.0% OD, straight up" in words  # the straight climb's figure, labelled
+    assert "straight up, ends by" in words and "to go" not in words and "margin" not in words
+    assert chart_data(across, units).marks == ()
+    assert view.level == "ok" and target_for(across) is None

@@ -55,6 +55,9 @@ def chart_data(analysis: Analysis, units: Units, baseline: Optional[Analysis] = 
     a = analysis.angles_deg
     named = {"B": a.get("balance"), "H": a.get("handover"), "L": a.get("front_lift"), "N": a.get("rear_lift"),
              "M": a.get("max_grade") if (a.get("max_grade") or 90.0) < 90.0 else None}  # 90: never ends
-    marks = tuple((letter, round(v, 2)) for letter, v in named.items() if v is not None and lo <= v <= hi)
+    # the marks are the angles of a straight climb: on another heading the curves are not theirs
+    straight = float(analysis.setup.terrain.heading_deg) % 360.0 == 0.0
+    marks = tuple((letter, round(v, 2)) for letter, v in named.items()
+                  if straight and v is not None and lo <= v <= hi)
     return ChartData(current, base, float(analysis.setup.terrain.slope_deg), marks, units.unit("mass"),
                      (lo, hi), float(top))

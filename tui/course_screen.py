@@ -215,9 +215,9 @@ def status_text(walk: CourseWalk, i: int, ascii_only: bool = False) -> str:
         doing += "; the belly touches"
     ahead = next((e for e in walk.events if e.index > i), None)
     nxt = f"Next (n): {EVENT_WORDS[ahead.kind]} at {ahead.rear_x_mm:.0f} mm" if ahead else "No more events ahead"
-    faster = f"{fast} faster" if fast else "no mismatch"
+    faster = f"{fast} overdriven" if fast else "no mismatch"
     slip = lambda x: "slides" if not math.isfinite(x) else f"{x:+.1f}%"  # noqa: E731
-    grip = (f"Grip used F {_pct(t.front_grip_used[i])} R {_pct(t.rear_grip_used[i])}, slip F "
+    grip = (f"Grip F {_pct(t.front_grip_used[i])} R {_pct(t.rear_grip_used[i])}, slip F "
             f"{slip(t.front_slip_pct[i])} R {slip(t.rear_slip_pct[i])}; path ratio {_num(p.path_ratio[i], 2)} "
             f"({faster})") if np.isfinite(t.front_grip_used[i]) else (
             f"Path ratio {_num(p.path_ratio[i], 2)} ({faster}); no tyre forces here")

@@ -116,9 +116,21 @@ def _overdrive_line(analysis: Analysis, units: Units) -> str:
     return f"{od.overdriven_axle.capitalize()} OD {abs(od.effective_pct):.1f}% ({parts})"
 
 
+def off_straight(analysis: Analysis) -> bool:
+    """True when the setup's heading is not straight up the face: the sweep and the verdict follow
+    the heading (MODEL section 8), the named angles stay those of a straight climb."""
+    return float(analysis.setup.terrain.heading_deg) % 360.0 != 0.0
+
+
 def _here_line(analysis: Analysis, slope_deg: float, units: Units, here: Here) -> str:
     here, axle = here[:2]
-    how = "climbing" + (f", throttle {analysis.accel_g:+g} g" if analysis.accel_g else "")
+    if off_straight(analysis):
+        from .heading_words import wrap_heading
+
+        how = f"on heading {round(wrap_heading(analysis.setup.terrain.heading_deg), 1) + 0.0:+g}{units.deg}"
+    else:
+        how = "climbing"
+    how += f", throttle {analysis.accel_g:+g} g" if analysis.accel_g else ""
     head = f"At {units.slope(slope_deg)} {how}: "
     if here in ("front", "rear"):
         return head + f"{here} lets go, {OTHER[here]} holds"
@@ -127,6 +139,9 @@ def _here_line(analysis: Analysis, slope_deg: float, units: Units, here: Here) -
     if here == "both":
         return head + "both axles slip"
     return head + f"{axle} axle off the ground"
+
+
+STRAIGHT_UP = "straight up"  # what a named angle is for when the heading is not (see `off_straight`)
 
 
 def _away(angle: float, slope_deg: float, units: Units, above: str, below: str) -> str:
@@ -159,7 +174,9 @@ def _handover_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
         return "Handover: none (no overdrive)"
     amount = f"{abs(od.effective_pct):.1f}% OD"
     if h is None:
-        return f"Handover: none below max grade at {amount}"
+        return f"Handover: none below max grade at {amount}" + (f", {STRAIGHT_UP}" if off_straight(analysis) else "")
+    if off_straight(analysis):
+        return f"Handover {units.angle(h)} at {amount}, {STRAIGHT_UP}"
     return f"Handover {units.angle(h)} at {amount}, " + _away(h, slope_deg, units, "up", "down")
 
 
@@ -209,6 +226,8 @@ def _max_grade_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
     m = analysis.angles_deg["max_grade"]
     if m >= 90.0:
         return f"Max grade: holds all the way to {units.angle(90)}"
+    if off_straight(analysis):
+        return f"Max grade {units.angle(m)} {STRAIGHT_UP}, ends by {analysis.max_grade_limit}"
     gap = m - slope_deg
     where = f"{units.angle(gap)} to go" if gap >= 0 else f"{units.angle(-gap)} past it"
     return f"Max grade {units.angle(m)}, ends by {analysis.max_grade_limit}; {where}"
@@ -216,12 +235,14 @@ def _max_grade_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
 
 def _lift_line(analysis: Analysis, slope_deg: float, units: Units) -> str:
     a = analysis.angles_deg
-    if slope_deg < 0 and a.get("rear_lift") is not None:
+    if slope_deg < 0 and a.get("rear_lift") is not None and not off_straight(analysis):
         rl = a["rear_lift"]
         return f"Rear lift {units.angle(rl)}, margin {units.angle(slope_deg - rl)}"
     fl = a.get("front_lift")
     if fl is None:
         return f"Front lift: none below {units.angle(90)}"
+    if off_straight(analysis):
+        return f"Front lift {units.angle(fl)} {STRAIGHT_UP}"
     return f"Front lift {units.angle(fl)}, margin {units.angle(fl - slope_deg)}"
 
 

@@ -287,7 +287,8 @@ def plan_lines(p: Plan, deg: str = " deg") -> list[str]:
         for k in others:
             if k in changed or k in gone:
                 delta = f"  ({moved[k]:+.2f})" if moved.get(k) is not None else ""
-                lines.append(f"  {ANGLE_LABELS[k]:<20}{angle_words(p.before, k, deg):>18} -> "
+                wide = max(len(label) for label in ANGLE_LABELS.values()) + 1
+                lines.append(f"  {ANGLE_LABELS[k]:<{wide}}{angle_words(p.before, k, deg):>12} -> "
                              f"{angle_words(p.after, k, deg)}{delta}")
     elif p.value != p.start_value:
         lines.append("Other angles: unchanged.")

@@ -336,14 +336,15 @@ class PlanScreen(ModalScreen[Optional[Setup]]):
         answer = self.query_one("#p-answer", Static)
         answer.update("\n".join(lines))
         answer.set_class(not p.reached, "-bad")
-        rows = [f"{'angle':<20}{'before':>10}{'after':>12}{'change':>10}"]
+        wide = max(len(label) for label in ANGLE_LABELS.values()) + 1  # the longest label sets the column
+        rows = [f"{'angle':<{wide + 1}}{'before':>10}{'after':>12}{'change':>10}"]
         moved = p.moved_deg()
         for key, label in ANGLE_LABELS.items():
             delta = moved.get(key)
             mark = "*" if key == name else " "
             change = "" if delta is None else f"{delta:+.2f}"
-            rows.append(f"{mark}{label:<19}{angle_words(p.before, key, ''):>10}{angle_words(p.after, key, ''):>12}"
-                        f"{change:>10}")
+            rows.append(f"{mark}{label:<{wide}}{angle_words(p.before, key, ''):>10}"
+                        f"{angle_words(p.after, key, ''):>12}{change:>10}")
         self.query_one("#p-preview", Static).update("\n".join(rows))
 
     # ---- events -------------------------------------------------------------------------------

@@ -210,6 +210,8 @@ def step(setup: Setup, row: Row, count: int) -> Edit:
     if row.quantity == "teeth":
         return _checked(setup, row.key, int(old) + int(size) * count)
     if row.quantity == "heading":  # round the circle: past +180 comes -175
+        if abs(count) == COARSE:
+            count = 9 if count > 0 else -9  # a coarse heading step is 45 deg: across, diagonals, down
         turned = (old + size * count + 180.0) % 360.0 - 180.0
         return _checked(setup, row.key, _round(180.0 if turned == -180.0 else turned))
     return _checked(setup, row.key, _round(old + size * count))
