@@ -289,6 +289,36 @@ def test_open_list_shows_setups_and_courses_not_other_toml_files(tmp_path):
     (tmp_path / "course.toml").write_text("schema = 1\n[course]\nname = 'x'\n", encoding="utf-8")
     entries, _problems = scan_setup_files([tmp_path])
     assert sorted(e.path.name for e in entries) == ["broken.toml", "course.toml", "rig.toml"]
+    good = ROOT / "setups" / "course-kestrel-knuckle.toml"
+    (tmp_path / "a-course.toml").write_text(good.read_text(encoding="utf-8"), encoding="utf-8")
+    entries, _problems = scan_setup_files([tmp_path])
+    # setups first, then good courses (named, marked), then files with a problem
+    assert [e.path.name for e in entries][:2] == ["rig.toml", "a-course.toml"]
+    assert entries[1].course and entries[1].name == "Kestrel Knuckle (course)" and entries[1].problem is None
+
+
+def test_opening_a_course_file_walks_the_open_rig_over_it_and_keeps_the_setup(tmp_path):
+    path = _copy(tmp_path)
+    course = tmp_path / "knuckle.toml"
+    course.write_text((ROOT / "setups" / "course-kestrel-knuckle.toml").read_text(encoding="utf-8"), encoding="utf-8")
+
+    async def go():
+        app = _app(path)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            await pilot.press("right")  # an unsaved change: opening a course must not ask to drop it
+            await pilot.pause()
+            changed = app.setup
+            app._walk_course_file(course)
+            await pilot.pause(0.5)
+            assert type(app.screen).__name__ == "CourseScreen"
+            assert app.screen.course.name == "Kestrel Knuckle" and app.screen.setup == changed
+            await pilot.press("escape")
+            await pilot.pause()
+            assert app.setup == changed and app.path == path
+            assert app._walk_course_file(path) is False  # a setup file is not a course
+
+    run(go())
 
 
 def test_accepting_a_plan_asks_before_replacing_a_pinned_baseline(tmp_path):

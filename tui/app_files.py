@@ -71,6 +71,8 @@ class FileActions:
         def chosen(path: Optional[Path]) -> None:
             if path is None:
                 return
+            if self._walk_course_file(path):
+                return  # a course file: the open rig walks over it, the setup stays
             if self.setup != self.saved_setup:
                 self._ask("Discard the unsaved changes and open another file?", "Discard", "Keep editing",
                           lambda: self._open(path))
@@ -78,6 +80,22 @@ class FileActions:
                 self._open(path)
 
         self._push("slopetune.tui.screens.open_file", "OpenFileScreen", lambda cls: cls(self._folders()), chosen, "open")
+
+    def _walk_course_file(self, path: Path) -> bool:
+        """Open the course view on `path` with the open rig when it is a course file; False if not."""
+        from slopetune.engine.course_file import load_course, looks_like_course
+        from slopetune.engine.setup_file import read_setup_text
+
+        try:
+            if not looks_like_course(read_setup_text(path)[0]):
+                return False
+            course = load_course(path).course
+        except SetupError as exc:
+            self._note(str(exc), "error")
+            return True
+        self._push("slopetune.tui.course_screen", "CourseScreen",
+                   lambda cls: cls(self.setup, setup_path=self.path, course=course), None, "the course view")
+        return True
 
     def _open(self, path: Path) -> None:
         try:

@@ -34,6 +34,7 @@ class SetupFileEntry:
     shown_path: str
     name: Optional[str]
     problem: Optional[str]
+    course: bool = False  # a course file: opening it walks the open rig over it
 
 
 def _shown(path: Path) -> str:
@@ -57,6 +58,9 @@ def _describe(path: Path) -> tuple[Optional[str], Optional[str]]:
     try:
         loaded = load_setup(path)
     except SetupError as exc:
+        course = _course_name(path)
+        if course is not None:
+            return f"{course} (course)", None
         where = f"line {exc.line}: " if exc.line is not None else ""
         return None, where + exc.reason
     except (OSError, UnicodeError, ValueError) as exc:
@@ -65,6 +69,17 @@ def _describe(path: Path) -> tuple[Optional[str], Optional[str]]:
         return None, f"cannot read: {type(exc).__name__}"
     name = " ".join(str(loaded.setup.name).split())
     return (name or path.stem), None
+
+
+def _course_name(path: Path) -> Optional[str]:
+    """The course's name when `path` is a good course file (schema and [course] only), else None."""
+    from slopetune.engine import SetupError
+    from slopetune.engine.course_file import load_course
+
+    try:
+        return " ".join(str(load_course(path).course.name).split()) or path.stem
+    except (SetupError, OSError, UnicodeError, ValueError):
+        return None
 
 
 _SETUP_MARK = re.compile(r"^\s*(\[\s*(rig|course)\s*\]|schema\s*=)", re.MULTILINE)
@@ -112,8 +127,9 @@ def scan_setup_files(folders: list[Path]) -> tuple[list[SetupFileEntry], list[st
     entries = []
     for path in found:
         name, problem = _describe(path)
-        entries.append(SetupFileEntry(path, _shown(path), name, problem))
-    entries.sort(key=lambda e: (e.problem is not None, e.shown_path))
+        entries.append(SetupFileEntry(path, _shown(path), name, problem,
+                                      course=problem is None and name is not None and name.endswith(" (course)")))
+    entries.sort(key=lambda e: (e.problem is not None, e.course, e.shown_path))  # setups, courses, then the rest
     return entries, problems
 
 
@@ -151,7 +167,7 @@ class OpenFileScreen(ModalScreen[Path | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="open-box"):
-            yield Plain("Open a setup", id="open-title")
+            yield Plain("Open a setup, or a course to walk the rig over", id="open-title")
             yield Plain("Looking for .toml files...", id="open-status")
             yield OptionList(id="open-list", compact=True)
             yield Plain(KEYS, id="open-keys")
