@@ -43,6 +43,11 @@ def test_two_setups_side_by_side(capsys):
     assert code == 0
     assert all(len(line) <= 80 for line in out.splitlines())
     assert "1 marmot-stock" in out and "2 marmot-overdrive" in out
+    from slopetune.tui.commands.compare import LABEL_W, ROWS
+
+    for _key, label, _get, _fmt in ROWS:  # every label stands clear of the first value
+        line = row(out, label)
+        assert line[:LABEL_W].rstrip() == label and line[LABEL_W - 1] == " ", line
     assert f"2438 (+{OD_MASS - 2380:.0f})" in row(out, "mass [g]")
     bal = row(out, "balance")
     assert f"{STOCK_BALANCE:.2f}" in bal

@@ -55,17 +55,18 @@ ROWS: list[tuple[str, str, Callable, Optional[str]]] = [
     ("overdriven_axle", "overdriven axle", lambda a: a.overdrive.overdriven_axle or "none", None),
     ("balance", "balance", lambda a: a.angles_deg["balance"], ".2f"),
     ("handover", "handover, climb", lambda a: _handover(a, "handover"), ".2f"),
-    ("handover_weight_only", "handover, weight rule", lambda a: _handover(a, "handover_weight_only"), ".2f"),
+    ("handover_weight_only", "handover by weight", lambda a: _handover(a, "handover_weight_only"), ".2f"),
     ("max_grade", "max grade", lambda a: a.angles_deg["max_grade"], ".2f"),
     ("max_grade_limit", "max grade ends by", lambda a: a.max_grade_limit, None),
     ("front_lift", "front lift", lambda a: a.angles_deg["front_lift"], ".2f"),
     ("rear_lift", "rear lift", lambda a: a.angles_deg["rear_lift"], ".2f"),
     ("sidehill_roll", "sidehill roll", lambda a: a.angles_deg["sidehill_roll"], ".2f"),
-    ("sidehill_slide", "sidehill slide, unwound", lambda a: a.angles_deg["sidehill_slide"], ".2f"),
+    ("sidehill_slide", "side slide, unwound", lambda a: a.angles_deg["sidehill_slide"], ".2f"),
     ("slope_deg", "tuned slope", lambda a: a.setup.terrain.slope_deg, ".1f"),
     ("slip_stiffness", "slip stiffness", lambda a: _stiffness(a.setup.grip.axle_stiffness()), None),
     ("throttle", "throttle [g]", lambda a: f"{a.accel_g:+g}" if a.accel_g else "steady", None),
 ]
+assert all(len(label) < LABEL_W for _key, label, _get, _fmt in ROWS), "a label would run into its values"
 
 
 def _cell(value, fmt: Optional[str], ref=None, show_diff: bool = False, width: int = 99) -> str:
