@@ -158,10 +158,10 @@ MUTANTS = (
       "dropped term: rear lift"),
 
     # --- tyre slip: brush model (Pacejka sec. 3.2), slip definitions (SAE J670) ----------------
-    M("TB01", "tyre_brush.py", "return 3.0 * x - 3.0 * x * np.abs(x) + x ** 3", "return 3.0 * x - 3.0 * x * x + x ** 3",
+    M("TB01", "tyre_brush.py", "return x * (3.0 - 3.0 * np.abs(x) + x * x)", "return x * (3.0 - 3.0 * x + x * x)",
       "dropped |λ|: ψ no longer odd"),
-    M("TB02", "tyre_brush.py", "return 3.0 * x - 3.0 * x * np.abs(x) + x ** 3",
-      "return 3.0 * x - 3.0 * x * np.abs(x) - x ** 3", "sign flip: cubic term of ψ"),
+    M("TB02", "tyre_brush.py", "return x * (3.0 - 3.0 * np.abs(x) + x * x)",
+      "return x * (3.0 - 3.0 * np.abs(x) - x * x)", "sign flip: cubic term of ψ"),
     M("TB03", "tyre_brush.py", "return 3.0 * (1.0 - np.abs(x)) ** 2", "return 3.0 * (1.0 - np.abs(x))",
       "dropped square: slope of ψ"),
     M("TB04", "tyre_brush.py", "np.sign(u) * (1.0 - np.cbrt(1.0 - np.abs(u)))",

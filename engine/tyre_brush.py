@@ -40,7 +40,8 @@ def brush_psi(lam):
     """
     lam = np.asarray(lam, dtype=float)
     x = np.clip(lam, -1.0, 1.0)
-    return 3.0 * x - 3.0 * x * np.abs(x) + x ** 3
+    # Horner form of 3x − 3x|x| + x³: numpy's `x ** 3` goes through pow(), ~100x slower than products
+    return x * (3.0 - 3.0 * np.abs(x) + x * x)
 
 
 def brush_psi_slope(lam):
