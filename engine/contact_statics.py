@@ -45,6 +45,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Optional
 
 import numpy as np
 
@@ -83,6 +84,10 @@ class ContactLoads:
     front_normal_g: np.ndarray  # [gf]
     rear_normal_g: np.ndarray
     traction: CourseTraction
+    # the normal forces at the gripping solution, before an axle lets go (the onset, MODEL §5);
+    # NaN where there is none (no root within the grip, binds); None from the rigid solve
+    onset_front_normal_g: Optional[np.ndarray] = None
+    onset_rear_normal_g: Optional[np.ndarray] = None
 
 
 def _cross(a, b):
@@ -276,6 +281,7 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     s_r = np.clip(s_r, a, b)
     _, nf, nr, mf, mr, lam_f, lam_r = eval_at(s_r)
     pole = has_root & ~has_genuine
+    onset = np.where(has_genuine, nf, np.nan), np.where(has_genuine, nr, np.nan)
 
     sat_f_, sat_r_ = np.abs(lam_f) >= 1.0, np.abs(lam_r) >= 1.0
     state = np.where(sat_f_ & sat_r_, BOTH, np.where(sat_f_, FRONT, np.where(sat_r_, REAR, NONE)))
@@ -345,10 +351,10 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     c = rolling_resistance
     total = -(nf * (eq.enf - c * eq.etf) + nr * (eq.enr - c * eq.etr) + eq.el)
     windup = np.where(fast_sign < 0, fr - total * (1.0 - share_f), ff - total * share_f)
-    return _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr)
+    return _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr, onset)
 
 
-def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr) -> ContactLoads:
+def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr, onset=(None, None)) -> ContactLoads:
     """Grip used, and `lifted` over everything where a normal force is not positive."""
     state = np.asarray(state).astype(np.int8)
     lifted = ~((nf > 0) & (nr > 0))
@@ -373,4 +379,5 @@ def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr) ->
             front_slip_pct=hide(slip_f), rear_slip_pct=hide(slip_r),
             front_grip_used=hide(used_f), rear_grip_used=hide(used_r),
         ),
+        onset_front_normal_g=onset[0], onset_rear_normal_g=onset[1],
     )

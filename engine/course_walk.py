@@ -7,11 +7,12 @@ last one. The course is the setup's own ``[course]`` or one given separately (a 
 
 Per position: the pose (`engine.course_geometry`), the path ratio ``ρ`` and pitch rate of the two
 wheel centres, the driveline's speed ratio ``K = g D_f(N_f)/D_r(N_r)`` with the rolling diameters
-under this position's loads (fixed-point: the loads depend on ``K`` through the tyre forces), and
-the two-contact statics with tyre slip (`engine.contact_statics`). The axle that is overdriven at
-a place is the one on its side of ``s_f/s_r = (K + (g − 1) r_f dφ/ds_r)/ρ = 1``, not the one the
-gears favour: where the front centre climbs faster than the rear (``ρ > K``) an overdriven front
-is kinematically underdriven and the wind-up reverses.
+under this position's loads, and the two-contact statics with tyre slip at that K
+(`engine.course_loads`: a fixed point, as the loads depend on ``K`` through the tyre forces). The
+axle that is overdriven at a place is the one on its side of
+``s_f/s_r = (K + (g − 1) r_f dφ/ds_r)/ρ = 1``, not the one the gears favour: where the front centre
+climbs faster than the rear (``ρ > K``) an overdriven front is kinematically underdriven and the
+wind-up reverses.
 
 A tyre sitting in a V (touching two faces) has two contacts: that pose is outside this model and
 is reported as such (state ``outside``), never solved with one face.
@@ -39,7 +40,8 @@ import numpy as np
 from .analysis import effective_rig, setup_overdrive
 from .contact_rigid import BINDS
 from .overdrive import SAME_SPEED_TOL
-from .contact_statics import ContactLoads, CourseTraction, solve_contacts
+from .contact_statics import ContactLoads, CourseTraction
+from .course_loads import solve_loads
 from .course_geometry import RigPose, concat_poses, place_rig, rig_paths, vertices_within
 from .setup_file import SetupError
 from .setup_model import Course, Setup
@@ -50,8 +52,6 @@ MAX_POSITIONS = 200_000  # a typo in --step should not eat the memory
 CHUNK_ELEMENTS = 1 << 18  # positions × terrain points in view, per chunk (2 MiB per float array)
 OUTSIDE = len(STATES)  # course only: a tyre in a V, or the front jammed against a wall
 WALK_STATES = STATES + ("outside",)
-_K_PASSES = 8  # at most: each pass shrinks the change about 10x, so smooth cases settle well within it
-_K_TOL = 1e-9  # share of the weight: the loads no longer move, K matches them
 
 
 @dataclass(frozen=True)
@@ -87,6 +87,9 @@ class CourseWalk:
     speed_ratio: np.ndarray  # K at each position's loads [-]
     mismatch: np.ndarray  # s_f/s_r with the rear rolling: (K + pitch term)/ρ [-]
     events: tuple  # CourseEvent, in course order
+    # True where the state flips with K and no loads reproduce their own K: the onset rule let an
+    # axle go (see `engine.course_loads.solve_loads`); K is at the loads after it let go
+    no_fixed_point: Optional[np.ndarray] = None
 
     @property
     def rear_x_mm(self) -> np.ndarray:
@@ -174,12 +177,6 @@ def chunk_size(points_mm, rig, clearance_mm: float) -> int:
     return max(1, CHUNK_ELEMENTS // max(per_wheel, in_reach, belly))
 
 
-def _rolling_dia(level_mm, loss_mm_per_100g, free_mm, normal_g, level_g):
-    """Rolling diameter under load, clamped at the free diameter and at half the level one. [mm]"""
-    d = level_mm - loss_mm_per_100g * (np.asarray(normal_g) - level_g) / 100.0
-    return np.clip(np.where(np.isfinite(d), d, level_mm), 0.5 * level_mm, free_mm)
-
-
 def _tyre_keys(setup: Setup):
     """(rolling diameters, their losses per 100 g, slip stiffnesses) with the file's defaults."""
     r, g = setup.rig, setup.grip
@@ -189,64 +186,6 @@ def _tyre_keys(setup: Setup):
             getattr(r, "rolling_dia_loss_rear_mm_per_100g", 0.0) or 0.0)
     stiff = g.axle_stiffness() if hasattr(g, "axle_stiffness") else (math.inf, math.inf)
     return dia, loss, stiff
-
-
-def _solve_chunk(setup, rig, gear, pose: RigPose):
-    """Statics of one chunk of poses, with K from the loads (fixed point)."""
-    (dia_f, dia_r), (loss_f, loss_r), (c_f, c_r) = _tyre_keys(setup)
-    fs, fk, rs, rk = setup.grip.axle_mu()
-    level_f = rig.mass_g * rig.cg_from_rear_mm / rig.wheelbase_mm
-    level_r = rig.mass_g - level_f
-    outside = ~np.isfinite(pose.path_ratio) | ~(pose.path_ratio > 0)
-    rho = np.where(outside, 1.0, pose.path_ratio)
-    rate = np.where(outside, 0.0, pose.pitch_rate_rad_per_mm)
-    nf, nr = np.full(rho.shape, level_f), np.full(rho.shape, level_r)
-    passes = _K_PASSES if (loss_f or loss_r) else 1
-    todo = np.ones(rho.shape, dtype=bool)  # positions whose loads still move K
-    loads = k = q = None
-    for _ in range(passes):
-        d_f = _rolling_dia(dia_f, loss_f, rig.tire_dia_front_mm, nf[todo], level_f)
-        d_r = _rolling_dia(dia_r, loss_r, rig.tire_dia_rear_mm, nr[todo], level_r)
-        k_now = gear * d_f / d_r
-        q_now = (gear - 1.0) * (d_f / 2.0) * rate[todo]
-        part = solve_contacts(
-            rig.mass_g, pose.front_contact_mm[todo], pose.rear_contact_mm[todo], pose.cg_mm[todo],
-            pose.front_angle_deg[todo], pose.rear_angle_deg[todo], pose.pitch_deg[todo], (fs, fk), (rs, rk),
-            c_f, c_r, k_now, q_now, rho[todo], setup.grip.rolling_resistance, setup.terrain.accel_g,
-        )
-        if loads is None:
-            loads, k, q = part, k_now, q_now
-        else:  # only the positions still moving were solved again: put them back in place
-            k, q = k.copy(), q.copy()
-            k[todo], q[todo] = k_now, q_now
-            loads = _put_back(loads, part, todo)
-        new_f = np.where(np.isfinite(part.front_normal_g), part.front_normal_g, level_f)
-        new_r = np.where(np.isfinite(part.rear_normal_g), part.rear_normal_g, level_r)
-        moved = np.maximum(np.abs(new_f - nf[todo]), np.abs(new_r - nr[todo])) > _K_TOL * rig.mass_g
-        nf, nr = nf.copy(), nr.copy()
-        nf[todo], nr[todo] = new_f, new_r
-        # a position whose state flips with K can swing between two loads for ever; each pass now
-        # costs only the positions still moving, so the few that never settle stay cheap
-        idx = np.flatnonzero(todo)
-        todo = np.zeros_like(todo)
-        todo[idx[moved]] = True
-        if not todo.any():
-            break
-    mismatch = np.where(outside, np.nan, (k + q) / rho)
-    return loads, k, mismatch, outside
-
-
-def _put_back(whole: ContactLoads, part: ContactLoads, where) -> ContactLoads:
-    """`whole` with the positions `where` taken from `part` (solved again on their own)."""
-    def merge(a, b):
-        out = np.array(a, copy=True)
-        out[where] = b
-        return out
-
-    t, u = whole.traction, part.traction
-    traction = CourseTraction(**{f: merge(getattr(t, f), getattr(u, f)) for f in CourseTraction.__dataclass_fields__})
-    return ContactLoads(merge(whole.front_normal_g, part.front_normal_g),
-                        merge(whole.rear_normal_g, part.rear_normal_g), traction)
 
 
 def _mark(loads: ContactLoads, pose: RigPose, outside) -> ContactLoads:
@@ -301,15 +240,17 @@ def walk_course(setup: Setup, step_mm: float = DEFAULT_STEP_MM, rear_x_mm=None,
     size = chunk_size(points, rig, course.belly_clearance_mm)
     rf, rr = rig.tire_dia_front_mm / 2.0, rig.tire_dia_rear_mm / 2.0
     paths = rig_paths(points, rig.wheelbase_mm, rf, rr)
-    poses, loads, ks, mism = [], [], [], []
+    keys = _tyre_keys(setup)
+    poses, loads, ks, mism, flips = [], [], [], [], []
     for start in range(0, max(xs.size, 1), size):
         pose = place_rig(points, xs[start:start + size], rig.wheelbase_mm, rf, rr, rig.cg_from_rear_mm,
                          rig.cg_height_mm, course.belly_clearance_mm, paths)
-        chunk_loads, k, mismatch, outside = _solve_chunk(setup, rig, gear, pose)
+        chunk_loads, k, mismatch, outside, no_fixed_point = solve_loads(setup, rig, gear, pose, keys)
         poses.append(pose)
         loads.append(_mark(chunk_loads, pose, outside))
         ks.append(k)
         mism.append(mismatch)
+        flips.append(no_fixed_point & pose.placed & ~outside)
     pose = concat_poses(poses)
     nf = np.concatenate([c.front_normal_g for c in loads])
     nr = np.concatenate([c.rear_normal_g for c in loads])
@@ -319,7 +260,7 @@ def walk_course(setup: Setup, step_mm: float = DEFAULT_STEP_MM, rear_x_mm=None,
     events = find_events(traction.state, nf, nr, pose.belly_clearance_mm <= 0, xs,
                          pose.front_centre_mm[:, 0], mismatch, pose)
     return CourseWalk(setup, course, od.overdriven_axle, float(step_mm), pose, nf, nr, traction,
-                      k_all, mismatch, tuple(events))
+                      k_all, mismatch, tuple(events), np.concatenate(flips))
 
 
 def _lift_code(front_normal_g, rear_normal_g, outside=None) -> np.ndarray:
