@@ -105,6 +105,13 @@ MUTANTS = (
       "dropped term: the rig tips over the measured axle"),
     M("M11", "measure.py", "return math.degrees(math.atan(mu_max * d / (wheelbase + mu_max * h))), \"mu\"",
       "return math.degrees(math.atan(mu_max)), \"mu\"", "wrong constant: atan(mu_max) bound for one axle"),
+    # both axles blocked: the tip-over bound (Gillespie ch. 2 lift angles)
+    M("M12", "measure.py", 'lever = b if facing == "up" else wheelbase - b',
+      'lever = wheelbase - b if facing == "up" else b', "per-axle swap: which axle lifts"),
+    M("M13", "measure.py", "tip = max(blocked_tip_angle_deg(", "tip = min(blocked_tip_angle_deg(",
+      "wrong branch: facing not known bounds by the gentler tip"),
+    M("M14", "measure.py", 'if axle == "both" and None in rig:', 'if axle == "both":',
+      "dropped term: the rig's tip-over check"),
 
     # --- analysis: the model built from a setup, named angles -----------------------------------
     M("A01", "analysis.py", "st.sidehill_slide_angle_deg(min(model.mu_f[0], model.mu_r[0]))",

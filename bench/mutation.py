@@ -34,6 +34,7 @@ TEST_FILES = (
     "tests/test_slip_definitions.py",
     "tests/test_measure.py",
     "tests/test_measure_one_axle.py",
+    "tests/test_measure_tip.py",
     "tests/test_statics.py",
     "tests/test_tyre_slip.py",
     "tests/test_slope_slip.py",

@@ -30,7 +30,8 @@ from .slope_statics import axle_loads_g
 
 # Decimals a measured value is stored and shown with: about what the readings resolve (a kitchen
 # scale to 1 g of a 2 kg rig is 0.05 %; a phone inclinometer to 0.5 deg moves mu by about 0.02).
-DIGITS = {"rig.front_bias_pct": 1, "rig.cg_height_mm": 1, "grip.mu_static": 2}
+DIGITS = {"rig.front_bias_pct": 1, "rig.cg_height_mm": 1, "grip.mu_static": 2,
+          "grip.front_mu_static": 2, "grip.rear_mu_static": 2}
 
 # The highest static friction a setup file takes (one place: the file's own rule).
 MU_STATIC_MAX = FIELDS["grip.mu_static"].hi
@@ -38,6 +39,8 @@ MU_STATIC_MAX = FIELDS["grip.mu_static"].hi
 # One axle on the board: which axle is blocked on it, and which way the rig's nose points.
 AXLES = ("front", "rear")
 FACINGS = ("up", "down")
+# The setup key a slide angle gives: all four wheels on the board, or one axle alone.
+MU_KEYS = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}
 
 
 @dataclass(frozen=True)
@@ -249,6 +252,82 @@ def one_axle_top_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, axle, fa
     return tip, "tip"
 
 
+def blocked_tip_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, facing):
+    """Board angle past which a rig with ALL its wheels blocked tips over instead of sliding.
+
+    Parameters
+    ----------
+    wheelbase_mm : array_like
+        ``L``. [mm]
+    cg_from_rear_mm : array_like
+        CG ahead of the rear axle, ``b``, of the rig as it stood on the board (ballast included). [mm]
+    cg_height_mm : array_like
+        CG height above the board, tyres included, ``h``. [mm]
+    facing : {"up", "down"}
+        The rig's nose up the board (slope ``+α``) or down it (``−α``).
+
+    Returns
+    -------
+    ndarray or float
+        ``atan(b/h)`` facing up, ``atan((L − b)/h)`` facing down. [deg] NaN for a geometry that
+        is no rig (``L`` or ``h`` not above 0, ``b`` outside (0, L)).
+
+    Notes
+    -----
+    Ground forces act in the board's plane, so moments about the downhill contact give the
+    uphill axle's load whatever the friction is and however the two axles share it: the
+    grade-load equation [4]_ at ``θ = +α`` facing up, ``−α`` facing down::
+
+        facing up:    N_f = W (b cos α − h sin α)/L
+        facing down:  N_r = W ((L − b) cos α − h sin α)/L
+
+    The uphill axle's load reaches zero at ``tan α = b/h`` facing up and ``tan α = (L − b)/h``
+    facing down (Gillespie's front-lift and rear-lift angles). Steeper than that the weight's
+    line of action passes behind the downhill contact and the rig pivots over that axle
+    (backwards facing up, over its nose facing down) before the blocked wheels can slide: a
+    slide seen there is not this rig's, the reading or the rig's ``b`` and ``h`` are wrong. It
+    also bounds the method: all wheels blocked, a board measures ``μ = tan α`` [3]_ only up to
+    ``b/h`` facing up and ``(L − b)/h`` facing down, so a front-heavy rig (``b > L/2``) reads
+    grippy tyres best facing up.
+    """
+    if facing not in FACINGS:
+        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+    wheelbase = np.asarray(wheelbase_mm, dtype=float)
+    b = np.asarray(cg_from_rear_mm, dtype=float)
+    h = np.asarray(cg_height_mm, dtype=float)
+    lever = b if facing == "up" else wheelbase - b
+    with np.errstate(invalid="ignore"):
+        ok = (wheelbase > 0) & (h > 0) & (b > 0) & (b < wheelbase)
+        out = np.where(ok, np.degrees(np.arctan2(lever, h)), np.nan)
+    return float(out) if out.ndim == 0 else out
+
+
+def both_axles_top_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, facing=None, mu_max=MU_STATIC_MAX):
+    """The steepest slide angle, all wheels blocked, that gives a mu a setup takes, and what sets it.
+
+    Parameters
+    ----------
+    wheelbase_mm, cg_from_rear_mm, cg_height_mm : float
+        ``L``, ``b``, ``h`` of the rig as it stood on the board. [mm]
+    facing : {"up", "down"} or None
+        Which way the rig's nose pointed; None when not known: then the steeper of the two tip
+        angles (a slide past it is impossible whichever way the rig faced).
+    mu_max : float
+        Highest mu allowed. [-]
+
+    Returns
+    -------
+    top_deg : float
+        [deg] Angles above 0 and up to it are possible.
+    limit : str
+        ``"mu"``: ``atan(mu_max)`` (``μ = tan α`` [3]_); ``"tip"``: `blocked_tip_angle_deg`, lower.
+    """
+    top_mu = math.degrees(math.atan(mu_max))
+    facings = FACINGS if facing is None else (facing,)
+    tip = max(blocked_tip_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, f) for f in facings)
+    return (tip, "tip") if tip < top_mu else (top_mu, "mu")
+
+
 def bias_checks(front_reading_g: float, total_g: float) -> list[ReadingCheck]:
     """Why a front-axle reading cannot give a front bias (empty: it can)."""
     if not front_reading_g > 0:
@@ -321,24 +400,37 @@ def slide_angle_checks(slide_angle_deg: float, mu_max: float = MU_STATIC_MAX, *,
     """Why a slide angle cannot give a static mu a setup takes (mu above 0 and at most `mu_max`).
 
     Both axles blocked (`axle` "both"): ``μ = tan α`` [3]_, so the angle must lie in
-    (0, atan(mu_max)]. One axle (`axle` "front" or "rear", the other on a low-friction sheet; give
-    `facing` and the rig): the bound is `one_axle_top_angle_deg`, the mu limit or the angle where
-    the rig tips over the measured axle, whichever comes first. A geometry that is no rig is
-    refused as reading "rig".
+    (0, atan(mu_max)]. Given the rig (all three of `wheelbase_mm`, `cg_from_rear_mm`,
+    `cg_height_mm`), the angle must also be at most the one where the rig tips over backwards
+    (facing up, ``tan α = b/h``) or over its nose (facing down, ``tan α = (L − b)/h``) before it
+    slides (`blocked_tip_angle_deg`, Gillespie's lift angles [4]_). With `facing` None the
+    steeper of the two bounds it, and an angle past the other is warned about (possible only
+    facing the other way). Without the rig, only the mu limit applies.
+
+    One axle (`axle` "front" or "rear", the other on a low-friction sheet; give `facing` and the
+    rig): the bound is `one_axle_top_angle_deg`, the mu limit or the angle where the rig tips
+    over the measured axle, whichever comes first. A geometry that is no rig is refused as
+    reading "rig".
     """
-    if axle == "both":
+    rig = (wheelbase_mm, cg_from_rear_mm, cg_height_mm)
+    if axle == "both" and None in rig:
         top = math.degrees(math.atan(mu_max))
         if not 0 < slide_angle_deg <= top:
             return [ReadingCheck("angle", None, True,
                                  f"{_g(slide_angle_deg)} deg: must be above 0 and at most {top:.1f} deg "
                                  f"(mu_static at most {mu_max:g}, the setup file's limit)")]
         return []
-    _one_axle_case(axle, facing or "")
-    wb, b, h = (float("nan") if v is None else float(v) for v in (wheelbase_mm, cg_from_rear_mm, cg_height_mm))
+    if axle != "both":
+        _one_axle_case(axle, facing or "")
+    elif facing is not None and facing not in FACINGS:
+        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+    wb, b, h = (float("nan") if v is None else float(v) for v in rig)
     if not (wb > 0 and h > 0 and 0 < b < wb):
         return [ReadingCheck("rig", None, True,
                              f"wheelbase {_g(wb)} mm, CG {_g(b)} mm ahead of the rear axle and {_g(h)} mm high: "
                              "needs a wheelbase and CG height above 0 and the CG between the axles")]
+    if axle == "both":
+        return _both_axles_checks(slide_angle_deg, mu_max, facing, wb, b, h)
     top, limit = one_axle_top_angle_deg(wb, b, h, axle, facing, mu_max)
     where = "uphill" if (axle == "front") == (facing == "up") else "downhill"
     if limit == "mu" and not 0 < slide_angle_deg <= top:
@@ -352,4 +444,36 @@ def slide_angle_checks(slide_angle_deg: float, mu_max: float = MU_STATIC_MAX, *,
         return [ReadingCheck("angle", None, True,
                              f"{_g(slide_angle_deg)} deg: must be above 0 and below {top:.1f} deg (there "
                              f"the {other} axle lifts and the rig tips over {over} before it can slide)")]
+    return []
+
+
+# How the rig goes over, and which axle lifts, with its nose up or down the board.
+_TIPS = {"up": ("backwards", "front"), "down": ("its nose", "rear")}
+
+
+def _both_axles_checks(angle_deg: float, mu_max: float, facing: Optional[str], wb: float, b: float,
+                       h: float) -> list[ReadingCheck]:
+    top, limit = both_axles_top_angle_deg(wb, b, h, facing, mu_max)
+    if not 0 < angle_deg <= top:
+        if limit == "mu":
+            why = f"mu_static at most {mu_max:g}, the setup file's limit"
+        elif facing is not None:
+            over, lifts = _TIPS[facing]
+            why = (f"nose {facing} the board, the {lifts} axle lifts there: the rig tips over {over} "
+                   "before its blocked wheels slide")
+        else:
+            up, down = (blocked_tip_angle_deg(wb, b, h, f) for f in FACINGS)
+            why = (f"past it the rig tips over before its blocked wheels slide, whichever way it faced: "
+                   f"backwards past {up:.1f} deg nose up the board, over its nose past {down:.1f} deg nose down")
+        return [ReadingCheck("angle", None, True,
+                             f"{_g(angle_deg)} deg: must be above 0 and at most {top:.1f} deg ({why})")]
+    if facing is None:
+        low, first = min((blocked_tip_angle_deg(wb, b, h, f), f) for f in FACINGS)
+        if angle_deg > low:
+            over, _lifts = _TIPS[first]
+            other = "down" if first == "up" else "up"
+            return [ReadingCheck("angle", None, False,
+                                 f"{_g(angle_deg)} deg: nose {first} the board, the rig tips over {over} "
+                                 f"past {low:.1f} deg before it slides; right only if it faced nose {other} "
+                                 "(say which way to check)")]
     return []

@@ -14,7 +14,7 @@ from typing import Optional
 
 from slopetune.engine import SetupError, check_value, load_setup
 from slopetune.engine.measure import (
-    DIGITS, FACINGS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
+    DIGITS, FACINGS, MU_KEYS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
     mu_from_slide_angle, mu_one_axle_from_slide_angle, slide_angle_checks,
 )
 from slopetune.engine.setup_model import rule_for
@@ -72,6 +72,7 @@ raise one end slowly until the rig starts to slide; read the board's angle (a ph
       --facing up        the rig's nose points up the board, as on a climb
       --facing down      its nose points down the board
                          No default: the load on the blocked axle, so its mu, depends on it.
+                         With --axle both it is optional: it only sharpens the tip-over check.
 
   one axle:  mu = W sin(a) / N_axle    (W cancels; t = +a facing up, -a facing down)
              N_front = W (b cos t - h sin t) / L,  N_rear = W cos t - N_front
@@ -83,16 +84,22 @@ With the blocked axle downhill the board must go steeper for the same mu, and a 
 the reading then moves mu less; but the uphill axle lifts at some angle and the rig tips over
 instead of sliding. A slide angle is refused when its mu is above the file's limit of 5, or at or
 past that tip.
+
+Both axles blocked, the rig tips over before it slides once the uphill axle's load reaches zero
+(Gillespie ch. 2): nose up it goes over backwards past tan(a) = b/h, nose down over its nose past
+tan(a) = (L - b)/h. When the rig is known (a setup file, or all three of --wheelbase, --front-bias
+and --cg-height) a slide angle past that is refused; without --facing, past the steeper of the
+two (and one past the other is warned about). A board measures mu only up to that: face a
+front-heavy rig nose up for grippy tyres.
 """
 
-MU_KEYS = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}
 # What the blocked axle's mu is in closed form (engine.measure.mu_one_axle_from_slide_angle), printed
 # with the result: d is b for the front, L - b for the rear; the sign of h is + for the downhill axle.
 ONE_AXLE_FORMULA = {
     ("front", "up"): "L tan a / (b - h tan a)", ("front", "down"): "L tan a / (b + h tan a)",
     ("rear", "up"): "L tan a / (L - b + h tan a)", ("rear", "down"): "L tan a / (L - b - h tan a)",
 }
-RIG_OPTIONS = ("facing", "wheelbase", "front_bias", "cg_height")
+RIG_OPTIONS = ("wheelbase", "front_bias", "cg_height")
 
 
 def _lift_pair(text: str):
@@ -136,12 +143,16 @@ def register(sub) -> None:
                    help="both axles on the board (default; tan of the angle), or one axle alone with the "
                         "other on a low-friction sheet (its per-axle override)")
     m.add_argument("--facing", choices=FACINGS,
-                   help="with --axle front|rear, needed: the rig's nose up the board (up) or down it (down)")
-    m.add_argument("--wheelbase", type=number, metavar="MM", help="with --axle front|rear [mm] (default: the file's)")
+                   help="the rig's nose up the board (up) or down it (down): needed with --axle front|rear; "
+                        "with --axle both optional, for the tip-over check")
+    m.add_argument("--wheelbase", type=number, metavar="MM",
+                   help="the rig on the board [mm] (default: the file's); with --axle both for the tip-over check")
     m.add_argument("--front-bias", type=number, metavar="PCT",
-                   help="with --axle front|rear: the rig on the board [%%] (default: the file's, ballast included)")
+                   help="the rig on the board [%%] (default: the file's, ballast included); with --axle both "
+                        "for the tip-over check")
     m.add_argument("--cg-height", type=number, metavar="MM",
-                   help="with --axle front|rear: the rig on the board [mm] (default: the file's, ballast included)")
+                   help="the rig on the board [mm] (default: the file's, ballast included); with --axle both "
+                        "for the tip-over check")
 
     for q in (b, c, m):
         _common(q)
@@ -159,6 +170,7 @@ class _Source:
         self._loaded = None
         self.used: list[str] = []
         self.note = ""  # said after the file's name on the "from FILE" line
+        self.purpose = ""  # said before the readings on that line, when they are not the result's own
         self.warnings: list[str] = []  # one line each on stderr, once the result stands
 
     def setup(self):
@@ -224,33 +236,38 @@ def _names(args, check: ReadingCheck) -> str:
             "rig": "--wheelbase, --front-bias, --cg-height"}[check.reading]
 
 
-def _judge(args, checks: list[ReadingCheck]) -> None:
-    """Refuse on the first refusal; print each warning as one line on stderr."""
+def _judge(args, checks: list[ReadingCheck], later: Optional[list[str]] = None) -> None:
+    """Refuse on the first refusal; print each warning as one line on stderr (or keep it in `later`,
+    to be said once the value stands)."""
     for check in checks:
         if check.refuse:
             raise ArgumentRefused(f"{_names(args, check)}: {check.why}")
     for check in checks:
-        print(f"slopetune measure {args.kind}: warning: {_names(args, check)}: {check.why}", file=sys.stderr)
+        if later is not None:
+            later.append(f"{_names(args, check)}: {check.why}")
+        else:
+            print(f"slopetune measure {args.kind}: warning: {_names(args, check)}: {check.why}", file=sys.stderr)
 
 
 def _fixed(key: str, value: float) -> str:
     return f"{value:.{DIGITS[key]}f}"
 
 
-def _mu(args, source: _Source) -> tuple[str, float, str]:
-    """The static mu of `measure mu`: tan of the angle for both axles, the one-axle statics for one."""
-    key = MU_KEYS[args.axle]
-    if args.axle == "both":
-        unused = [f"--{name.replace('_', '-')}" for name in RIG_OPTIONS if getattr(args, name) is not None]
-        if unused:  # said once the value stands, so a refusal stays one line
-            source.warnings.append(f"{', '.join(unused)} not used with --axle both "
-                                   "(tan of the angle whatever the rig and its facing)")
-        _judge(args, slide_angle_checks(args.angle))
-        value = round(float(mu_from_slide_angle(args.angle)), DIGITS["grip.mu_static"])
-        return key, value, f"static mu {_fixed('grip.mu_static', value)} (tan {args.angle:g} deg)"
-    if args.facing is None:
-        raise ArgumentRefused(f"--facing up|down is needed with --axle {args.axle}: the rig's nose up the board "
-                              "or down it (the blocked axle's load depends on it)")
+def mu_problem(setup, key: str, value: float) -> Optional[str]:
+    """Why `setup` refuses a measured static mu at `key` (one of MU_KEYS), in a builder's words, or None."""
+    problem = check_value(setup, key, value)
+    if problem:
+        _fs, fk, _rs, rk = setup.grip.axle_mu()
+        side, kinetic = {"grip.mu_static": ("", setup.grip.mu_kinetic), "grip.front_mu_static": ("front ", fk),
+                         "grip.rear_mu_static": ("rear ", rk)}[key]
+        if value < kinetic:
+            problem = (f"below the {side}kinetic mu {kinetic:g} there (static grip is never below kinetic: "
+                       "check the angle, or measure kinetic mu again)")
+    return problem or None
+
+
+def _rig(args, source: _Source) -> tuple[float, float, float]:
+    """L, b and h of the rig as it stood on the board [mm]: the options, else the file's effective rig."""
     wb = _checked(source.value(args.wheelbase, "--wheelbase", "rig.wheelbase_mm", "the wheelbase"),
                   "--wheelbase", "rig.wheelbase_mm")
     bias = _checked(source.value(args.front_bias, "--front-bias", "effective.front_bias_pct", "the front bias"),
@@ -259,7 +276,32 @@ def _mu(args, source: _Source) -> tuple[str, float, str]:
                       "--cg-height", "rig.cg_height_mm")
     if args.front_bias is None or args.cg_height is None:
         source.note = source.ballast_note()
-    b = bias / 100.0 * wb
+    return wb, bias / 100.0 * wb, height
+
+
+def _mu(args, source: _Source) -> tuple[str, float, str]:
+    """The static mu of `measure mu`: tan of the angle for both axles, the one-axle statics for one."""
+    key = MU_KEYS[args.axle]
+    if args.axle == "both":
+        rig = None
+        if source.path is not None or all(getattr(args, name) is not None for name in RIG_OPTIONS):
+            rig = _rig(args, source)
+            source.purpose = "for the tip-over check: "
+        else:
+            unused = [f"--{name.replace('_', '-')}" for name in ("facing",) + RIG_OPTIONS
+                      if getattr(args, name) is not None]
+            if unused:  # said once the value stands, so a refusal stays one line
+                source.warnings.append(f"{', '.join(unused)} not used with --axle both (tan of the angle; the "
+                                       "tip-over check needs --wheelbase, --front-bias and --cg-height, or --from FILE)")
+        wb, b, height = rig if rig is not None else (None, None, None)
+        _judge(args, slide_angle_checks(args.angle, facing=args.facing, wheelbase_mm=wb, cg_from_rear_mm=b,
+                                        cg_height_mm=height), later=source.warnings)
+        value = round(float(mu_from_slide_angle(args.angle)), DIGITS["grip.mu_static"])
+        return key, value, f"static mu {_fixed('grip.mu_static', value)} (tan {args.angle:g} deg)"
+    if args.facing is None:
+        raise ArgumentRefused(f"--facing up|down is needed with --axle {args.axle}: the rig's nose up the board "
+                              "or down it (the blocked axle's load depends on it)")
+    wb, b, height = _rig(args, source)
     _judge(args, slide_angle_checks(args.angle, axle=args.axle, facing=args.facing, wheelbase_mm=wb,
                                     cg_from_rear_mm=b, cg_height_mm=height))
     mu = mu_one_axle_from_slide_angle(args.angle, wb, b, height, args.axle, args.facing)
@@ -302,20 +344,15 @@ def run(args) -> int:
     else:
         key, value, text = _mu(args, source)
         setup = source.setup()
-        problem = setup is not None and check_value(setup, key, value)
+        problem = setup is not None and mu_problem(setup, key, value)
         if problem:
-            _fs, fk, _rs, rk = setup.grip.axle_mu()
-            kinetic = {"both": setup.grip.mu_kinetic, "front": fk, "rear": rk}[args.axle]
-            if value < kinetic:
-                problem = (f"below the kinetic mu {kinetic:g} there (static grip is never below kinetic: "
-                           "check the angle, or measure kinetic mu again)")
             raise ArgumentRefused(f"--angle {args.angle:g}: gives {key.split('.')[-1]} {value:g}, "
                                   f"which {source.path} refuses: {problem}")
     for warning in source.warnings:
         print(f"slopetune measure {args.kind}: warning: {warning}", file=sys.stderr)
     print(text)
     if source.used:
-        print(f"  ({', '.join(source.used)} from {source.path}{source.note})")
+        print(f"  ({source.purpose}{', '.join(source.used)} from {source.path}{source.note})")
         setup = source.setup()
         if args.kind in ("bias", "cg-height") and setup.rig.ballast and args.total is None:
             n = len(setup.rig.ballast)
