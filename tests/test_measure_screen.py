@@ -1,5 +1,6 @@
 """The measuring screen's plausibility checks: the same readings the command line refuses or warns
-about are refused or warned about here, naming the reading, and the axle-lift help is shown."""
+about are refused or warned about here, naming the reading, and the axle-lift help is shown.
+The slide-angle section's one-axle mu and tip-over check are in test_measure_screen_mu.py."""
 
 from __future__ import annotations
 
@@ -15,10 +16,11 @@ from test_screens import NO_RESULT, STOCK, run_screen, screen_text
 
 
 def _hand_worked_setup():
-    # The hand-worked rig of tests/test_measure.py: W 2000 g, L 300 mm, tyres 100 mm (r 50 mm).
+    # The hand-worked rig of tests/test_measure.py: W 2000 g, L 300 mm, tyres 100 mm (r 50 mm);
+    # on the board that of tests/test_measure_one_axle.py: front bias 60 % (b 180 mm), h 100 mm.
     setup = load_setup(STOCK).setup
     rig = replace(setup.rig, mass_g=2000.0, wheelbase_mm=300.0, tire_dia_front_mm=100.0, tire_dia_rear_mm=100.0,
-                  ballast=())
+                  front_bias_pct=60.0, cg_height_mm=100.0, ballast=())
     return replace(setup, rig=rig)
 
 
@@ -77,7 +79,15 @@ def test_screen_refuses_readings_above_the_total(lifts, level, words):
     assert not out["apply"] and out["check"] == words
 
 
-def test_screen_and_command_line_share_the_slide_angle_limit():
-    # atan 5 = 78.69 deg: the file's mu_static limit (four-figure tables); 80 deg refused on both.
+def test_screen_and_command_line_share_the_slide_angle_limit(capsys):
+    # Both axles, facing not noted: the hand-worked rig tips over backwards past atan(180/100) =
+    # 60.95 deg nose up and over its nose past atan(120/100) = 50.19 deg nose down (Gillespie ch. 2
+    # lift angles, four-figure tables), both before the file's mu limit (atan 5 = 78.69 deg): 80 deg
+    # is refused on the screen and by `measure mu` given the same rig, in the same words.
+    from slopetune.tui.cli import main
+
     out = _type_lifts("150:1192.45", slide="80")
-    assert not out["mu_apply"] and out["mu_check"].startswith("Slide angle: 80 deg") and "78.7" in out["mu_check"]
+    assert not out["mu_apply"] and out["mu_check"].startswith("Slide angle: 80 deg") and "60.9" in out["mu_check"]
+    assert main(["measure", "mu", "--angle", "80", "--wheelbase", "300", "--front-bias", "60", "--cg-height", "100"]) == 2
+    err = capsys.readouterr().err
+    assert err.strip().endswith(out["mu_check"].removeprefix("Slide angle: "))

@@ -1,4 +1,5 @@
-"""Turn scale readings into setup values: front bias, CG height by axle lift, static mu by slide angle.
+"""Turn scale readings into setup values: front bias, CG height by axle lift, static mu by slide angle
+(all wheels on the board, or one axle alone with the other on a low-friction sheet).
 
 The sums are the engine's (`engine.measure`); this screen only parses, checks and shows them.
 """
@@ -6,51 +7,48 @@ The sums are the engine's (`engine.measure`); this screen only parses, checks an
 from __future__ import annotations
 
 import math
-import re
-from functools import partial
 from typing import Optional
 
-from textual import on
+from textual import events, on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Static
 
-from slopetune.engine import Setup, check_value
+from slopetune.engine import Setup
 from slopetune.engine.measure import (
-    DIGITS as MEASURE_DIGITS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct, lift_checks,
-    mu_from_slide_angle, slide_angle_checks,
+    DIGITS as MEASURE_DIGITS, MU_KEYS, ReadingCheck, bias_checks, cg_height_from_lift_mm, front_bias_pct,
+    lift_checks, mu_from_slide_angle, mu_one_axle_from_slide_angle, slide_angle_checks,
 )
-from slopetune.engine.setup_model import cross_field_problems, rule_for
 
+from ..commands.measure import ONE_AXLE_FORMULA, mu_problem
 from ..units import plain_scrollbars
+from ..widgets.choice import Choice
+from .measure_fields import (
+    FieldProblem, Plain, _fmt, choice_row, field_row, parse_lift_pairs, parse_number, refusal,
+)
 
-# Words from files and setups may hold brackets: never read them as markup.
-Plain = partial(Static, markup=False)
-
-def field_row(field_id: str, label: str, value: str, unit: str, wide: bool = False) -> ComposeResult:
-    """One reading: label, input, unit and the line that says why a value is refused (every
-    section of the measuring screen, the slip tests included, lays its readings out this way)."""
-    with Horizontal(classes="m-row"):
-        yield Plain(label, classes="m-label")
-        yield Input(value, id=field_id, compact=True, select_on_focus=True,
-                    classes="m-input -wide" if wide else "m-input")
-        yield Plain(unit, classes="m-unit")
-        yield Plain("", id=f"{field_id}-why", classes="m-why")
-
-
-KEYS = "Up/Down: field   Enter: next, then Apply   Esc: cancel"
+KEYS = "Up/Down: field  Left/Right: choose  Enter: next, then Apply  Esc: cancel"
 # Typing pauses this long before the sums are redone (a burst of keys costs one redraw, not one each).
 SETTLE_S = 0.12
+LAYOUT_S = 0.05
 
 # What a field means, shown beside it while its value is fine (a problem replaces it).
 NOTES = {
     "m-total": "as weighed, ready to run",
     "m-axle": "loaded tyre radius",
     "m-lifts": "mm raised : front g",
-    "m-slide": "board angle at the first slide",
+    "m-slide": "board angle at first slide",
 }
+
+# The slide-angle section: which mu (all wheels on the board, or one axle alone) and which way the
+# rig's nose pointed. No facing is assumed: one axle's load depends on it (as `measure mu --facing`).
+AXLE_CHOICES = [("both", "both axles"), ("front", "front only"), ("rear", "rear only")]
+FACING_CHOICES = [("", "not noted"), ("up", "nose up"), ("down", "nose down")]
+SHEET_HOW = "{other} wheels on a low-friction sheet (plastic on glass), {axle} blocked."
+# Focusing these scrolls the section's result into view too: the choice and its result together.
+MU_FIELDS = ("m-mu-axle", "m-mu-facing", "m-slide")
 
 # Rounded to what a kitchen scale and a protractor resolve, as the command line does.
 DIGITS = {key: MEASURE_DIGITS[key] for key in ("rig.front_bias_pct", "rig.cg_height_mm", "grip.mu_static")}
@@ -59,60 +57,9 @@ DIGITS = {key: MEASURE_DIGITS[key] for key in ("rig.front_bias_pct", "rig.cg_hei
 CHECK_FIELDS = {"front": ("m-front", "Front axle reading"), "total": ("m-total", "Total weight"),
                 "level": ("m-level", "Front reading, level"), "lift": ("m-lifts", "Lifts"),
                 "axle": ("m-axle", "Axle height"), "wheelbase": ("m-wheelbase", "Wheelbase"),
-                "angle": ("m-slide", "Slide angle")}
+                "angle": ("m-slide", "Slide angle"), "rig": ("m-mu-axle", "The setup's rig")}
 
 LIFT_HOW = "Before lifting: driveshaft out (wheels roll freely), suspension locked."
-
-_PAIR_SPLIT = re.compile(r"[,;]\s*|\s+(?=\S+\s*:)")
-
-
-class FieldProblem(ValueError):
-    """A typed value that cannot be used; the message is the reason shown beside the field."""
-
-
-def parse_number(text: str) -> float:
-    """A finite number from `text`, else `FieldProblem`."""
-    try:
-        value = float(text.strip().replace(",", "."))
-    except ValueError:
-        raise FieldProblem("not a number") from None
-    if not math.isfinite(value):
-        raise FieldProblem("must be finite")
-    return value
-
-
-def parse_lift_pairs(text: str) -> tuple[list[float], list[float]]:
-    """Lifts and front readings from "100:1096, 150:1140" ([mm]:[g] pairs, comma separated)."""
-    pieces = [p.strip() for p in _PAIR_SPLIT.split(text.strip()) if p.strip()]
-    if not pieces:
-        raise FieldProblem("give one or more lift:reading pairs, e.g. 100:1096")
-    lifts, readings = [], []
-    for n, piece in enumerate(pieces, 1):
-        lift_text, sep, reading_text = piece.partition(":")
-        if not sep:
-            raise FieldProblem(f"pair {n} '{piece}': write lift mm:reading g")
-        try:
-            lifts.append(parse_number(lift_text))
-            readings.append(parse_number(reading_text))
-        except FieldProblem:
-            raise FieldProblem(f"pair {n} '{piece}': not two numbers") from None
-    return lifts, readings
-
-
-def refusal(setup: Setup, key: str, value: float) -> Optional[str]:
-    """Why `value` cannot go at `key`, naming the other key when a cross-field rule refuses it."""
-    why = check_value(setup, key, value)
-    if why and rule_for(key).problem(value) is None:
-        clashes = cross_field_problems(setup.with_value(key, value))
-        other = clashes[0][0].split(".")[-1] if clashes and clashes[0][0] != key else None
-        if other and other not in why:
-            return f"{other} {why}"
-    return why
-
-
-def _fmt(value: float) -> str:
-    return f"{value:.10g}" if value == round(value, 6) else f"{value:.6g}"
-
 
 class MeasureScreen(ModalScreen[dict[str, float] | None]):
     """Three small forms; Apply returns the setup keys to change, Esc returns None."""
@@ -123,6 +70,8 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         # priority: the scrolling body would otherwise take Up/Down to scroll, not to move between fields
         Binding("down", "app.focus_next", "Next field", show=False, id="measure.next", priority=True),
         Binding("up", "app.focus_previous", "Previous field", show=False, id="measure.previous", priority=True),
+        # reached only from a choice: a reading's Enter and a button's press come first
+        Binding("enter", "app.focus_next", "Next field", show=False, id="measure.choice_next"),
     ]
 
     def __init__(self, setup: Setup, ascii_only: Optional[bool] = None) -> None:
@@ -131,6 +80,8 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         self._ascii_only = ascii_only
         self.results: dict[str, Optional[float]] = {key: None for key in DIGITS}
         self.total_g: Optional[float] = None
+        self.mu_key = MU_KEYS["both"]  # the setup key the slide-angle section's value goes to
+        self._notes = dict(NOTES)  # the choices' notes follow what is chosen
         self._settle = None  # the timer that recomputes once typing pauses
 
     # ---- layout -------------------------------------------------------------------------------
@@ -155,7 +106,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         front_g = rig.mass_g * rig.front_bias_pct / 100.0
         axle_mm = (rig.tire_dia_front_mm + rig.tire_dia_rear_mm) / 4.0
         slide_deg = math.degrees(math.atan(grip.mu_static))
-        mu_word, tan_word = ("mu", "tan(angle)") if self._ascii() else ("μ", "tan α")
+        mu_word, tan_word = ("mu", "tan a") if self._ascii() else ("μ", "tan α")
         self._words = {"mu": mu_word, "tan": tan_word}
         with Vertical(id="measure-box"):
             yield Plain("Measure the rig", id="measure-title")
@@ -178,9 +129,12 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
                 yield from self._field("m-level", "Front reading, level", f"{front_g:.1f}", "g")
                 yield from self._field("m-lifts", "Lifts", "", "", wide=True)
                 yield from self._result("rig.cg_height_mm", "Apply CG")
-                yield Plain(f"Static grip, {mu_word} = {tan_word}: block the wheels, tilt the board",
+                yield Plain("Static grip: block the wheels, tilt the board until the rig slides",
                              classes="m-heading")
+                yield from choice_row("m-mu-axle", "Which mu", AXLE_CHOICES)
+                yield from choice_row("m-mu-facing", "Rig on the board", FACING_CHOICES)
                 yield from self._field("m-slide", "Slide angle", f"{slide_deg:.1f}", "deg")
+                yield Plain("", id="mu-how", classes="m-note")
                 yield from self._result("grip.mu_static", f"Apply {mu_word}")
                 if hasattr(self.setup.grip, "slip_stiffness"):  # the slip model's setups
                     from .measure_slip import SlipStiffnessForm
@@ -204,10 +158,10 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     def _say(self, field_id: str, why: str, warn: bool = False) -> None:
         """Show `why` beside the field (a refusal, or with `warn` a warning), or its note when fine."""
         note = self.query_one(f"#{field_id}-why", Static)
-        note.update(why or NOTES.get(field_id, ""))
+        note.update(why or self._notes.get(field_id, ""))
         note.set_class(bool(why) and not warn, "-bad")
         note.set_class(bool(why) and warn, "-warn")
-        self.query_one(f"#{field_id}", Input).set_class(bool(why), "-bad")
+        self.query_one(f"#{field_id}").set_class(bool(why), "-bad")
 
     def _number(self, field_id: str, key: Optional[str] = None, positive: bool = False) -> Optional[float]:
         """The field's number, or None with the reason shown beside it."""
@@ -248,12 +202,13 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         line.display = True
         return check.refuse
 
-    def _show(self, key: str, value: Optional[float], line: str) -> None:
-        """Record a result (None: not usable), write its line, enable its Apply button."""
+    def _show(self, key: str, value: Optional[float], line: str, setup_key: Optional[str] = None) -> None:
+        """Record a section's result (None: not usable), write its line, enable its Apply button;
+        `setup_key` is where the value goes when that is not the section's own key."""
         stem = key.split(".")[1]
         if value is not None:
-            value = round(value, DIGITS[key])
-            why = refusal(self.setup, key, value)
+            value = round(value, MEASURE_DIGITS[setup_key or key])
+            why = refusal(self.setup, setup_key or key, value)
             if why:
                 line, value = f"{line.split('  (')[0]}: {why}", None
         self.results[key] = value
@@ -267,6 +222,8 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         self._front_bias(total)
         self._cg_height(total)
         self._mu()
+        if self.focused is not None and self.focused.id in MU_FIELDS:
+            self._show_mu_result()  # a check line or the sheet line may have pushed it down
 
     def _front_bias(self, total: Optional[float]) -> None:
         front = self._number("m-front", positive=True)
@@ -317,16 +274,67 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         self._show(key, height, f"CG height = {height:.1f} mm  ({how})")
 
     def _mu(self) -> None:
-        key = "grip.mu_static"
+        key, words = "grip.mu_static", self._words
+        axle = self.query_one("#m-mu-axle", Choice).value
+        facing = self.query_one("#m-mu-facing", Choice).value or None
+        self.mu_key = MU_KEYS[axle]
+        self._notes["m-mu-axle"] = f"writes {self.mu_key}"
+        self._say("m-mu-axle", "")
+        wheelbase, b, h = self._board_rig()
+        if axle == "both":
+            self._notes["m-mu-facing"] = "for the tip-over check"
+            name = f"{words['mu']} static"
+        else:
+            uphill = (axle == "front") == (facing == "up")
+            self._notes["m-mu-facing"] = f"{axle} axle {'uphill' if uphill else 'downhill'}"
+            name = f"{axle} {words['mu']} static"
+        self._say("m-mu-facing", "needed: load depends on it" if axle != "both" and facing is None else "")
         angle = self._number("m-slide")
-        if self._refused(key, slide_angle_checks(angle) if angle is not None else []):
-            angle = None
-        if angle is None:
-            self._show(key, None, f"{self._words['mu']} static: needs the slide angle")
+        checks = []
+        if angle is not None and (axle == "both" or facing is not None):
+            checks = slide_angle_checks(angle, axle=axle, facing=facing, wheelbase_mm=wheelbase, cg_from_rear_mm=b,
+                                        cg_height_mm=h)
+        if self._refused(key, checks):
+            self._show(key, None, f"{name}: the slide angle looks wrong (see above)")
             return
-        mu = float(mu_from_slide_angle(angle))
-        words = self._words
-        self._show(key, mu, f"{words['mu']} static = {mu:.2f}  ({words['mu']} = {words['tan']})")
+        if angle is None or (axle != "both" and facing is None):
+            self._show(key, None, f"{name}: needs {'the slide angle' if angle is None else 'the facing'}")
+            return
+        if axle == "both":
+            mu, formula = float(mu_from_slide_angle(angle)), words["tan"]
+        else:
+            mu = mu_one_axle_from_slide_angle(angle, wheelbase, b, h, axle, facing)
+            formula = ONE_AXLE_FORMULA[axle, facing]
+            if not self._ascii():
+                formula = formula.replace("tan a", words["tan"]).replace(" - ", " − ")
+        if not math.isfinite(mu):  # the checks above refuse these; a hair's breadth at a tip angle may remain
+            self._show(key, None, f"{name}: this rig cannot slide on the {axle} axle alone there")
+            return
+        why = mu_problem(self.setup, self.mu_key, round(mu, MEASURE_DIGITS[self.mu_key]))
+        if why:
+            self._refused(key, [ReadingCheck("angle", None, True,
+                                             f"gives {self.mu_key.split('.')[-1]} {mu:.2f}, which the setup "
+                                             f"refuses: {why}")])
+            self._show(key, None, f"{name} = {mu:.2f}: not taken (see above)")
+            return
+        self._show(key, mu, f"{name} = {mu:.2f}  ({words['mu']} = {formula})", setup_key=self.mu_key)
+
+    def _board_rig(self) -> tuple[float, float, float]:
+        """L, b and h of the rig on the board [mm]: the open setup's, ballast included; said under
+        the slide angle, with the sheet to lay for one axle."""
+        from slopetune.engine.ballast import combine_ballast
+
+        rig = self.setup.rig
+        _mass, b, h = combine_ballast(rig)
+        axle = self.query_one("#m-mu-axle", Choice).value
+        n = len(rig.ballast)
+        whose = f"the setup's, {n} ballast item{'s' if n > 1 else ''} in" if n else "the setup's"
+        how = f"Rig ({whose}): L {rig.wheelbase_mm:g} mm, b {b:.1f} mm, h {h:.1f} mm"
+        if axle != "both":
+            other = "rear" if axle == "front" else "front"
+            how = SHEET_HOW.format(other=other.capitalize(), axle=axle) + "\n" + how
+        self.query_one("#mu-how", Static).update(how)
+        return rig.wheelbase_mm, b, h
 
     # ---- events -------------------------------------------------------------------------------
 
@@ -347,6 +355,25 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         if self._settle is not None:
             self._settle.stop()
             self._settled()
+
+    def on_descendant_focus(self, event: events.DescendantFocus) -> None:
+        """A field of the slide-angle section: show its result line and Apply as well."""
+        if event.widget.id in MU_FIELDS:
+            self._show_mu_result()
+
+    def _show_mu_result(self) -> None:
+        result = self.query_one("#mu_static-result", Static)
+        # once the lines just changed above it (a check, the sheet line) are laid out: the next
+        # refresh is too early, it scrolls by the old height
+        self.set_timer(LAYOUT_S, lambda: result.scroll_visible(animate=False))
+
+    @on(Choice.Changed)
+    def _chosen(self) -> None:
+        """Another mu or facing: the sums are redone at once (one key, not a burst)."""
+        if self._settle is not None:
+            self._settle.stop()
+            self._settle = None
+        self._recompute()
 
     @on(Input.Submitted)
     def _next(self, event: Input.Submitted) -> None:
@@ -374,12 +401,15 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
         """Apply one section's value (and the total weight when it was changed)."""
         self._flush()
         stem = event.button.id.removesuffix("-apply")
-        key = next(k for k in DIGITS if k.endswith("." + stem))
+        key = next(k for k in DIGITS if k.split(".")[1] == stem)
         value = self.results.get(key)
         if value is None:
             return
+        if key == "grip.mu_static":  # the weight cancels from every mu
+            self.dismiss({self.mu_key: value})
+            return
         out = {key: value}
-        if key != "grip.mu_static" and self.total_g is not None and self.total_g != self.setup.rig.mass_g:
+        if self.total_g is not None and self.total_g != self.setup.rig.mass_g:
             out["rig.mass_g"] = self.total_g
         self.dismiss(out)
 

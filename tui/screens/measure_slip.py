@@ -77,7 +77,7 @@ class SlipStiffnessForm(Vertical):
     # ---- layout -------------------------------------------------------------------------------
 
     def _field(self, field_id: str, label: str, value: str, unit: str, wide: bool = False) -> ComposeResult:
-        from .measure import field_row  # the screen that holds this form is loaded already
+        from .measure_fields import field_row
 
         yield from field_row(field_id, label, value, unit, wide)
 

@@ -16,7 +16,6 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.message import Message
-from textual.reactive import reactive
 from textual.screen import ModalScreen
 from textual.timer import Timer
 from textual.widgets import Input, Static
@@ -29,6 +28,7 @@ from slopetune.engine.goal_seek import (
 )
 
 from ..commands.plan import ANGLE_LABELS, angle_words, change_words
+from ..widgets.choice import Choice
 
 KEYS = "Enter: accept   Esc: discard   Up/Down: field   Left/Right: choose"
 # Typing settles for this long before the goal seek starts (a held key starts one, not dozens).
@@ -85,47 +85,6 @@ def _fmt(value: float) -> str:
 def short_change(p: Plan) -> str:
     """The change as a short instruction that fits one line of the screen."""
     return change_words(p, short=True)
-
-
-class Choice(Static, can_focus=True):
-    """One of a few options, stepped with Left/Right; posts `Changed`."""
-
-    BINDINGS = [
-        Binding("left", "step(-1)", "Previous", show=False, id="plan.choice.previous"),
-        Binding("right", "step(1)", "Next", show=False, id="plan.choice.next"),
-    ]
-
-    index = reactive(0, init=False)
-
-    class Changed(Message):
-        """The chosen option changed."""
-
-        def __init__(self, choice: "Choice", value: str) -> None:
-            super().__init__()
-            self.choice = choice
-            self.value = value
-
-        @property
-        def control(self) -> "Choice":
-            return self.choice
-
-    def __init__(self, options: list[tuple[str, str]], index: int = 0, **kwargs) -> None:
-        super().__init__(**kwargs)
-        self.options = list(options)
-        self.set_reactive(Choice.index, index)
-
-    @property
-    def value(self) -> str:
-        return self.options[self.index][0]
-
-    def render(self) -> str:
-        return f"< {self.options[self.index][1]} >"
-
-    def watch_index(self) -> None:
-        self.post_message(self.Changed(self, self.value))
-
-    def action_step(self, delta: int) -> None:
-        self.index = (self.index + delta) % len(self.options)
 
 
 class PlanScreen(ModalScreen[Optional[Setup]]):
