@@ -39,11 +39,15 @@ TEST_FILES = (
     "tests/test_tyre_slip.py",
     "tests/test_slope_slip.py",
     "tests/test_course_walk.py",
-    "tests/test_traction.py",
-    "tests/test_course_statics.py",
+    "tests/test_traction_reference.py",
+    "tests/test_traction_published.py",
+    "tests/test_report_reference.py",
+    "tests/test_contact_uniform_slope.py",
+    "tests/test_contact_equilibrium.py",
+    "tests/test_contact_first_to_let_go.py",
 )
 # Too slow to run ~80 times (about 80 s alone); the suite still runs it.
-DESELECT = ("tests/test_course_statics.py::test_uneven_ground_agrees_with_an_independent_per_position_solver",)
+DESELECT = ("tests/test_contact_equilibrium.py::test_uneven_ground_agrees_with_an_independent_per_position_solver",)
 TIMEOUT_S = 600  # a mutant that hangs the tests is killed by the timeout and said so
 _IGNORE = shutil.ignore_patterns(".venv", ".git", "__pycache__", ".hypothesis", ".pytest_cache", "*.pyc",
                                  "*.egg-info", "build", "dist")
