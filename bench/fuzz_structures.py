@@ -26,12 +26,13 @@ from hypothesis import strategies as st
 
 from slopetune.engine import BallastItem, SetupError, load_setup
 
-from bench import fuzz_inputs as fz
+from bench import fuzz_checks as fc
+from bench import fuzz_documents as fd
 
 # A small file must never cost more than this (generous for a slow 2-core machine).
 CASE_BUDGET_S = 2.0
 UNSAFE = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u2028\u2029\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]")
-STOCK = fz.SHIPPED_TEXT[0]
+STOCK = fd.SHIPPED_TEXT[0]
 
 
 def timed(fn, *args):
@@ -63,7 +64,7 @@ def nested_texts(draw):
     where = draw(st.sampled_from(["value", "string", "multiline", "comment"]))
     piece = {"value": f"deep = {value}", "string": f"deep = {value!r}".replace("'", '"'),
              "multiline": f'deep = """\n{value}\n"""', "comment": f"# {value}"}[where]
-    return _splice(draw, draw(st.sampled_from(fz.SHIPPED_TEXT)), piece)
+    return _splice(draw, draw(st.sampled_from(fd.SHIPPED_TEXT)), piece)
 
 
 @st.composite
@@ -80,7 +81,7 @@ def dotted_key_texts(draw):
 @st.composite
 def slow_line_texts(draw):
     """Header-like long lines in multi-line strings, thousands of unknown keys, a bad value after."""
-    text = draw(st.sampled_from(fz.SHIPPED_TEXT))
+    text = draw(st.sampled_from(fd.SHIPPED_TEXT))
     n = draw(st.sampled_from([100, 2000, 20000]))
     blob = draw(st.sampled_from(["[" + " " * n + "x", "[[" + "a." * (n // 4) + " ", "[" + '"' * 2 + " " * n]))
     text = _splice(draw, text, f'blob = """\n{blob}\n"""')
@@ -103,7 +104,7 @@ stage_list = st.lists(st.tuples(teeth, teeth), min_size=1, max_size=10)
 def stage_texts(draw):
     f, r = draw(stage_list), draw(stage_list)
     fmt = lambda s: "[" + ", ".join(f"[{a}, {b}]" for a, b in s) + "]"  # noqa: E731
-    return fz.SHIPPED_TEXT[1].replace("front_stages = [[13, 38]]", f"front_stages = {fmt(f)}").replace(
+    return fd.SHIPPED_TEXT[1].replace("front_stages = [[13, 38]]", f"front_stages = {fmt(f)}").replace(
         "rear_stages = [[13, 40]]", f"rear_stages = {fmt(r)}")
 
 
@@ -212,7 +213,7 @@ def check_layout_save(doc: dict, layout: str, crlf: bool, bom: bool, edit: str, 
     try:
         loaded = load_setup(path)
     except SetupError as exc:
-        fz.check_error(exc, str(path))
+        fc.check_error(exc, str(path))
         return "refused on load"
     new = apply_edit(loaded.setup, edit, evil)
     before = path.read_bytes()
@@ -232,7 +233,7 @@ def check_layout_save(doc: dict, layout: str, crlf: bool, bom: bool, edit: str, 
     return "saved"
 
 
-layout_cases = st.tuples(st.sampled_from(fz.BASE_DOCS), st.sampled_from(LAYOUTS), st.booleans(), st.booleans(),
+layout_cases = st.tuples(st.sampled_from(fd.BASE_DOCS), st.sampled_from(LAYOUTS), st.booleans(), st.booleans(),
                          st.sampled_from(EDITS), evil_text)
 
 
@@ -240,7 +241,7 @@ layout_cases = st.tuples(st.sampled_from(fz.BASE_DOCS), st.sampled_from(LAYOUTS)
 
 @st.composite
 def escape_texts(draw):
-    doc = copy.deepcopy(draw(st.sampled_from(fz.BASE_DOCS)))
+    doc = copy.deepcopy(draw(st.sampled_from(fd.BASE_DOCS)))
     bad = draw(st.text(alphabet=st.sampled_from(
         ["\x1b", "]", "2", ";", "\x07", "[", "J", "\x9b", "\u202e", "\u2066", "\u200f", "\x7f", "a"]), min_size=1,
         max_size=16))
@@ -273,7 +274,7 @@ def check_printed_text(text: str, folder: Path) -> None:
 
 # ---------------------------------------------------------------------------- command-line numbers
 
-cli_numbers = st.one_of(st.sampled_from([str(x) for x in fz.SPECIAL_NUMBERS] + ["5e-324", "1e308", "-1e308", "nan",
+cli_numbers = st.one_of(st.sampled_from([str(x) for x in fd.SPECIAL_NUMBERS] + ["5e-324", "1e308", "-1e308", "nan",
                                                                               "inf", "1e-320", "0"]),
                         st.floats().map(repr))
 
@@ -283,7 +284,7 @@ def cli_argvs(draw):
     """Options spelled --name=VALUE, so a negative number reaches the command, not argparse."""
     n = cli_numbers
     kind = draw(st.sampled_from(["report", "bias", "cg", "mu", "plan"]))
-    stock = str(fz.SHIPPED[0])
+    stock = str(fd.SHIPPED[0])
     if kind == "report":
         return ["report", stock, f"--from={draw(n)}", f"--to={draw(n)}", f"--step={draw(n)}"]
     if kind == "bias":
@@ -365,7 +366,7 @@ def check_special(kind: str, folder: Path) -> None:
     assert not th.is_alive(), f"{kind}: still reading after {CASE_BUDGET_S} s"
     assert "crash" not in box, f"{kind}: {box.get('crash')!r}"
     if "err" in box:
-        fz.check_error(box["err"], str(path))
+        fc.check_error(box["err"], str(path))
     else:
         assert kind == "exactly 1 MiB", f"{kind} loaded"
 
@@ -406,7 +407,7 @@ def check_planner_limits(case) -> None:
     from slopetune.engine.goal_seek import AddBallast, CgHeight, Compound, Overdrive, Target, angle_value_deg, plan
 
     which, angle, delta, kind, w = case
-    setup = fz.BASE_SETUPS[which]
+    setup = fd.BASE_SETUPS[which]
     now = angle_value_deg(analyse(setup), angle)
     target = Target(angle, ">=" if delta >= 0 else "<=", (now if math.isfinite(now) else 20.0) + delta)
     narrow, broad = {
@@ -427,14 +428,14 @@ def check_planner_limits(case) -> None:
 
 def families(folder: Path):
     """name -> (strategy, check) for bench/fuzz_inputs.py."""
-    text_check = lambda t: timed(fz.check_text, t)  # noqa: E731
+    text_check = lambda t: timed(fc.check_text, t)  # noqa: E731
     return {
         "deep nesting": (nested_texts(), text_check),
         "long dotted keys": (dotted_key_texts(), text_check),
         "slow line finding": (slow_line_texts(), text_check),
-        "legal gear stages": (stage_texts(), lambda t: fz.check_text(t, slopes=(0.0, 45.0, 90.0))),
+        "legal gear stages": (stage_texts(), lambda t: fc.check_text(t, slopes=(0.0, 45.0, 90.0))),
         "gear teeth in the form": (st.tuples(st.sampled_from(["front", "rear"]), st.integers(0, 1), teeth),
-                                   lambda d: fz.check_value_case(1, f"driveline.{d[0]}_stages.0.{d[1]}", d[2])),
+                                   lambda d: fc.check_value_case(1, f"driveline.{d[0]}_stages.0.{d[1]}", d[2])),
         "layouts saved": (layout_cases, lambda d: check_layout_save(*d, folder)),
         "escapes in file text": (escape_texts(), lambda t: check_printed_text(t, folder)),
         "command-line numbers": (cli_argvs(), check_cli_numbers),

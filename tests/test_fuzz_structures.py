@@ -20,7 +20,8 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:  # bench/ is not installed: import it from the checkout
     sys.path.insert(0, str(ROOT))
 
-from bench import fuzz_inputs as fz  # noqa: E402
+from bench import fuzz_checks as fc  # noqa: E402
+from bench import fuzz_documents as fd  # noqa: E402
 from bench import fuzz_structures as fs  # noqa: E402
 
 
@@ -37,13 +38,13 @@ def folder(tmp_path_factory):
 @ci(25)
 @given(st.one_of(fs.nested_texts(), fs.dotted_key_texts(), fs.slow_line_texts()))
 def test_nesting_keys_and_line_finding_are_refused_or_loaded_fast(text):
-    fs.timed(fz.check_text, text)
+    fs.timed(fc.check_text, text)
 
 
 @ci(25)
 @given(fs.stage_texts())
 def test_legal_gear_stages_load_or_are_refused_in_one_line(text):
-    fz.check_text(text, slopes=(0.0, 45.0, 90.0))
+    fc.check_text(text, slopes=(0.0, 45.0, 90.0))
 
 
 @ci(40)
@@ -56,7 +57,7 @@ def test_every_layout_saves_or_refuses_cleanly(folder, case):
 @pytest.mark.parametrize("edit", fs.EDITS)
 def test_each_layout_takes_each_edit(folder, layout, edit):
     # the stock-with-extras document (ballast, course) in every layout, every edit: all must save
-    assert fs.check_layout_save(fz.BASE_DOCS[1], layout, False, False, edit, "", folder) == "saved"
+    assert fs.check_layout_save(fd.BASE_DOCS[1], layout, False, False, edit, "", folder) == "saved"
 
 
 @ci(15)
@@ -79,7 +80,7 @@ def test_special_files_are_refused_without_hanging(folder, kind):
 @ci(10)
 @given(fs.extreme_size_texts())
 def test_extreme_sizes_stay_within_the_time_budget(text):
-    fs.timed(fz.check_text, text)
+    fs.timed(fc.check_text, text)
 
 
 @ci(4)

@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import os
 import re
-import stat
 import sys
 import threading
 import time
@@ -25,14 +24,14 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from bench import fuzz_inputs as fz  # noqa: E402
+from bench import fuzz_documents as fd  # noqa: E402
 from slopetune.engine import SetupError, check_value, load_setup, parse_setup  # noqa: E402
 from slopetune.engine.safe_text import one_line, safe_lines  # noqa: E402
 from slopetune.engine.setup_file import find_line  # noqa: E402
 from slopetune.tui.cli import main  # noqa: E402
 
-STOCK = fz.SHIPPED_TEXT[0]
-GEARS = fz.SHIPPED_TEXT[1]
+STOCK = fd.SHIPPED_TEXT[0]
+GEARS = fd.SHIPPED_TEXT[1]
 
 
 def _run(argv, capsys):
@@ -199,7 +198,7 @@ def test_stages_whose_ratio_leaves_the_range_are_refused_by_the_loader():
 
 
 def test_the_form_refuses_the_same_stage_change():
-    setup = fz.BASE_SETUPS[1]  # [[13, 38]] front, [[13, 40]] rear
+    setup = fd.BASE_SETUPS[1]  # [[13, 38]] front, [[13, 40]] rear
     # driven 38 -> 1000 on the front: 40/1000*... front turns 13/1000 / (13/40) = 0.04 per rear turn: -96 %
     problem = check_value(setup, "driveline.front_stages.0.1", 1000)
     assert problem and "overdrive" in problem

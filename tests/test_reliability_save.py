@@ -22,14 +22,14 @@ ROOT = Path(__file__).resolve().parents[1]
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from bench import fuzz_inputs as fz  # noqa: E402
+from bench import fuzz_documents as fd  # noqa: E402
 from slopetune.engine import BallastItem, load_setup, parse_setup  # noqa: E402
 from slopetune.tui import setup_writer  # noqa: E402
 from slopetune.tui.setup_writer import (  # noqa: E402
     FileChangedOnDisk, LinkToNowhere, SaveError, save_setup, set_keys,
 )
 
-STOCK = fz.SHIPPED_TEXT[0]
+STOCK = fd.SHIPPED_TEXT[0]
 ROOT_USER = hasattr(os, "geteuid") and os.geteuid() == 0
 
 
