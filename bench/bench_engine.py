@@ -21,6 +21,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from slopetune.engine import analyse, load_setup  # noqa: E402
 from slopetune.engine.analysis import effective_rig, setup_overdrive  # noqa: E402
+from slopetune.engine.setup_model import DEFAULT_SLIP_STIFFNESS  # noqa: E402
 
 SETUP = Path(__file__).resolve().parents[1] / "setups" / "marmot-overdrive.toml"
 SLOPES = np.arange(-90.0, 90.0 + 1e-9, 0.5)
@@ -74,21 +75,10 @@ def median_ms(fn, repeat=200):
     return statistics.median(times) * 1e3
 
 
-def _variant(setup, rigid: bool, tyre_dias: bool):
-    from dataclasses import replace
-
-    rig, grip = setup.rig, setup.grip
-    if tyre_dias:
-        rig = replace(rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
-                      rolling_dia_loss_front_mm_per_100g=0.0, rolling_dia_loss_rear_mm_per_100g=0.0)
-    grip = replace(grip, slip_stiffness=math.inf if rigid else 10.0)
-    return replace(setup, rig=rig, grip=grip)
-
-
 def main() -> int:
     setup = load_setup(SETUP).setup
     a = analyse(setup, SLOPES)
-    rigid = _variant(setup, rigid=True, tyre_dias=True)
+    rigid = setup.rigid_tyres()
     # the scalar loop is the rigid rule: it must agree with the engine's rigid limit
     loop_states = [row[0] for row in loop_sweep(rigid, SLOPES)]
     assert loop_states == analyse(rigid, SLOPES).sweep.slipping, "loop and vectorised sweep disagree"
@@ -107,7 +97,8 @@ def main() -> int:
           f" {t_loop:.3f} ms, {t_loop / t_vec:.1f} x the vectorised slip sweep)")
     ok = True
     for label, s in (("the demo file (scanned + bisected angles)", setup),
-                     ("default c = 10, tyre diameters (exact)", _variant(setup, False, True)),
+                     ("default c = 10, tyre diameters (exact)",
+                      setup.on_tyre_diameters().with_slip_stiffness(DEFAULT_SLIP_STIFFNESS)),
                      ("rigid rule, tyre diameters (exact)", rigid)):
         t_full = median_ms(lambda: analyse(s, SLOPES), repeat=60)
         ok &= t_full <= 5.0

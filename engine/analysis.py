@@ -334,9 +334,3 @@ def analyse(setup: Setup, slopes_deg=None, *, accel_g: Optional[float] = None,
     throttle, throttle_limit = (None, None) if accel == 0 else _named_angles(model)
     return Analysis(setup, rig, setup_overdrive(setup), accel, angles, limit, model.sweep(slopes),
                     throttle, throttle_limit, model)
-
-
-def with_stiffness(setup: Setup, stiffness: float) -> Setup:
-    """`setup` with one slip stiffness for both axles (overrides cleared). [-]"""
-    return replace(setup, grip=replace(setup.grip, slip_stiffness=stiffness,
-                                       front_slip_stiffness=None, rear_slip_stiffness=None))

@@ -155,6 +155,24 @@ class Setup:
             obj = obj[int(part)] if part.isdigit() else getattr(obj, part)
         return obj
 
+    def on_tyre_diameters(self) -> "Setup":
+        """A copy whose speed ratio comes from the tyre diameters alone: no roll-out diameters and
+        no loss under load (MODEL section 4 without the roll-out measurements)."""
+        return replace(self, rig=replace(self.rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
+                                         rolling_dia_loss_front_mm_per_100g=0.0,
+                                         rolling_dia_loss_rear_mm_per_100g=0.0))
+
+    def with_slip_stiffness(self, per_load: float) -> "Setup":
+        """A copy with one slip stiffness per unit load on both axles, per-axle overrides cleared
+        (``math.inf``: the rigid-driveline rule). [-]"""
+        return replace(self, grip=replace(self.grip, slip_stiffness=per_load, front_slip_stiffness=None,
+                                          rear_slip_stiffness=None))
+
+    def rigid_tyres(self) -> "Setup":
+        """A copy on the rigid-driveline rule with the tyre diameters (no slip, no roll-out under
+        load): the closed-form model of MODEL sections 3 and 5, which hand-worked checks quote."""
+        return self.on_tyre_diameters().with_slip_stiffness(math.inf)
+
 
 @dataclass(frozen=True)
 class FieldRule:

@@ -270,10 +270,7 @@ def stiffness_range(handover_of: Callable[[float], tuple[Optional[float], Option
 
 def one_stiffness(setup, c: float):
     """`setup` with the slip stiffness `c` on both axles (per-axle overrides cleared)."""
-    for side in ("front", "rear"):
-        if getattr(setup.grip, f"{side}_slip_stiffness", None) is not None:
-            setup = setup.with_value(f"grip.{side}_slip_stiffness", None)
-    return setup.with_value("grip.slip_stiffness", c)
+    return setup.with_slip_stiffness(c)
 
 
 def _finite_or_none(value) -> Optional[float]:

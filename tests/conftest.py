@@ -128,18 +128,9 @@ def rig_setups(draw, *, overdrive=True, ballast=True, per_axle=True, rolling=Tru
     return setup
 
 
-def rigid_tyres(setup):
-    """`setup` on the rigid-driveline rule with the tyre diameters (no slip, no roll-out under load):
-    the model the closed-form references in these tests are written for."""
-    rig = dataclasses.replace(setup.rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
-                              rolling_dia_loss_front_mm_per_100g=0.0, rolling_dia_loss_rear_mm_per_100g=0.0)
-    grip = dataclasses.replace(setup.grip, slip_stiffness=math.inf, front_slip_stiffness=None,
-                               rear_slip_stiffness=None)
-    return dataclasses.replace(setup, rig=rig, grip=grip)
-
-
 def rigid_text(text: str) -> str:
-    """A demo setup file's text made rigid the same way (slip stiffness "rigid", no roll-out keys)."""
+    """A demo setup file's text made rigid as `Setup.rigid_tyres` makes a setup: slip stiffness
+    "rigid", no roll-out keys (the model the closed-form references in these tests are written for)."""
     lines = [line for line in text.splitlines() if not line.startswith("rolling_dia")]
     return "\n".join(line if not line.startswith("slip_stiffness") else 'slip_stiffness = "rigid"'
                      for line in lines) + "\n"

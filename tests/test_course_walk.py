@@ -28,7 +28,7 @@ from slopetune.engine.course_walk import walk_course
 from slopetune.engine.traction import BOTH, FRONT, LIFTED, REAR
 from slopetune.tui.cli import main
 
-from conftest import rig_setups, rigid_tyres
+from conftest import rig_setups
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMOS = sorted((ROOT / "setups").glob("course-*.toml"))
@@ -75,7 +75,7 @@ def test_crest_front_on_flat_rear_on_a_steep_face():
     """Rear wheel on a 50° face, front on the flat top (a crest): the forces satisfy Σx, Σz and
     Σ moments about the CG (Meriam & Kraige ch. 3), the slipping axle carries μ_k N and the
     gripping one stays within μ_s N (Serway & Beichner ch. 5)."""
-    setup = rigid_tyres(load_setup(ROOT / "setups" / "marmot-overdrive.toml").setup)  # Coulomb limits
+    setup = load_setup(ROOT / "setups" / "marmot-overdrive.toml").setup.rigid_tyres()  # Coulomb limits
     face = 50.0
     top = 300.0 * math.tan(math.radians(face))
     setup = _with_course(setup, [[0.0, 0.0], [400.0, 0.0], [700.0, top], [1500.0, top]])
@@ -168,7 +168,7 @@ def test_kestrel_knuckle_states_worked_by_hand():
     - face, atan(314/220) = 55.0°: even all the grip, at most 1.05 W cos θ, is short of
       W (sin θ + 0.03 cos θ), since tan 55° = 1.43 > 1.02: both slip ("cannot_hold" before it).
     """
-    setup = rigid_tyres(load_setup(RIG).setup)  # worked by hand with the rigid rule on the tyre diameters
+    setup = load_setup(RIG).setup.rigid_tyres()  # worked by hand with the rigid rule on the tyre diameters
     walk = walk_course(setup, 5.0, course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
     p = walk.pose
     face, ramp = math.degrees(math.atan2(314, 220)), math.degrees(math.atan2(213, 400))
@@ -306,7 +306,7 @@ def test_kestrel_ramp_foot_kinematics_worked_by_hand():
     overdriven by its gears, is kinematically underdriven here, so the rear is the faster axle
     (the walk before the path ratio called this stretch a handover to the front). At x = 300:
     ψ = 20.80°, ρ = 0.9423, s_f/s_r = 1.1418: the front is the faster axle."""
-    setup = rigid_tyres(load_setup(RIG).setup)  # tyre diameters: K = 1.07143 as worked above
+    setup = load_setup(RIG).setup.rigid_tyres()  # tyre diameters: K = 1.07143 as worked above
     walk = walk_course(setup, rear_x_mm=[100.0, 300.0],
                        course=load_course(ROOT / "setups" / "course-kestrel-knuckle.toml").course)
     alpha = math.atan2(213.0, 400.0)

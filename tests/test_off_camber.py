@@ -29,9 +29,7 @@ DEMO = ROOT / "setups" / "marmot-overdrive.toml"
 def demo_setup() -> Setup:
     """The demo rig on its tyre diameters (MODEL's worked examples quote it without roll-out
     measurements, so the speed ratio does not change with load)."""
-    s = load_setup(DEMO).setup
-    return replace(s, rig=replace(s.rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
-                                  rolling_dia_loss_front_mm_per_100g=0.0, rolling_dia_loss_rear_mm_per_100g=0.0))
+    return load_setup(DEMO).setup.on_tyre_diameters()
 
 
 def round_rig(overdrive_pct=0.0, mu=(1.0, 0.8), rolling=0.0, share=None, **grip) -> Setup:

@@ -158,9 +158,7 @@ def test_ballast_for_climbing_handover_matches_brentq_on_closed_form():
     # the scanned (non-monotone) case, on the demo rig with brass and tyre overdrive
     loaded = load_setup(SETUPS / "marmot-overdrive.toml")
     # the closed form is the rigid rule with the tyre diameters: no slip, no roll-out under load
-    s = loaded.setup.with_value("grip.slip_stiffness", math.inf)
-    s = replace(s, rig=replace(s.rig, rolling_dia_front_mm=None, rolling_dia_rear_mm=None,
-                               rolling_dia_loss_front_mm_per_100g=0.0, rolling_dia_loss_rear_mm_per_100g=0.0))
+    s = loaded.setup.rigid_tyres()
     # effective rig from the file's numbers by hand (Jazar ch. 2 mass centre)
     masses = [2380.0, 96.0, -38.0]
     xs = [0.575 * 313.0, 313.0, 120.0]

@@ -21,7 +21,6 @@ ROOT = Path(__file__).resolve().parent.parent
 STOCK = load_setup(ROOT / "setups" / "marmot-stock.toml").setup
 OVERDRIVE = load_setup(ROOT / "setups" / "marmot-overdrive.toml").setup
 
-from conftest import rigid_tyres  # noqa: E402
 NO_RESULT = object()
 
 
@@ -119,7 +118,7 @@ def test_unreachable_is_said_and_enter_does_not_accept():
         await pilot.press("enter")
         return text
 
-    result, text = run_screen(rigid_tyres(OVERDRIVE), script)  # rigid: the handover sits near 7°
+    result, text = run_screen(OVERDRIVE.rigid_tyres(), script)  # rigid: the handover sits near 7°
     assert result is NO_RESULT
     assert "Cannot reach handover >= 9°" in text
     assert "item < 1: brass front knuckles (pair) >" in text

@@ -29,7 +29,6 @@ from scipy.optimize import brentq
 from slopetune.engine import Grip, analyse, load_setup
 from slopetune.engine.overdrive import rolling_dia_under_load_mm
 
-from conftest import rigid_tyres
 from test_tyre_slip import reference_state
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -39,7 +38,7 @@ DEMO = ROOT / "setups" / "marmot-overdrive.toml"
 def _demo(stiffness=math.inf, crr=0.0, tyre_dias=True, **grip):
     s = load_setup(DEMO).setup
     if tyre_dias:
-        s = rigid_tyres(s)
+        s = s.on_tyre_diameters()
     return replace(s, grip=Grip(1.0, 0.8, crr, slip_stiffness=stiffness, **grip))
 
 

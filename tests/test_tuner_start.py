@@ -12,8 +12,6 @@ from slopetune.tui.widgets import form_fields as ff
 from slopetune.tui.widgets.load_chart import ASCII_FOLD, chart_data, plot_text
 from slopetune.tui.units import Units
 
-from conftest import rigid_tyres
-
 ROOT = Path(__file__).resolve().parent.parent
 
 
@@ -137,7 +135,7 @@ def test_flag_words_match_the_reference_states_on_the_steep_side():
 
     from slopetune.tui.status_words import status_view
 
-    base = rigid_tyres(demo_setup().setup)  # the reference is the rigid-driveline rule
+    base = demo_setup().setup.rigid_tyres()  # the reference is the rigid-driveline rule
     for slope in (10.0, 40.0, 45.0, 60.0, 70.0):
         setup = base.with_value("terrain.slope_deg", slope)
         view = status_view(engine.analyse(setup), Units())
