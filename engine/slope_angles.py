@@ -26,7 +26,7 @@ from typing import Optional
 import numpy as np
 
 from . import slope_statics as st
-from .traction import FRONT, HOLDING, LIFTED, REAR
+from .traction import FRONT, HOLDING, LIFTED
 from .tyre_brush import brush_psi
 
 SCAN_STEP_DEG = 0.25
@@ -42,24 +42,32 @@ def _breakpoints(model, weights, lo_deg, hi_deg):
     return np.array(sorted(pts))
 
 
+def _probes(model, weights):
+    """The breakpoints in [0°, 90°] and one probe slope per stretch they bound: 0° itself, then the
+    middle of each stretch (nothing changes inside one, so its middle speaks for all of it)."""
+    pts = _breakpoints(model, weights, 0.0, 90.0)
+    return pts, np.concatenate(([pts[0]], (pts[:-1] + pts[1:]) / 2.0))
+
+
+def _first_bad(pts, good) -> Optional[tuple[float, int]]:
+    """(angle, probe index) of the first probe of `_probes` where `good` fails: the stretch starts
+    at the breakpoint below that probe (0° for the first). None when every probe holds."""
+    bad = np.flatnonzero(~good)
+    if bad.size == 0:
+        return None
+    j = int(bad[0])
+    return float(pts[max(j - 1, 0)]), j
+
+
 def exact_failures(model, tests):
     """For each ``ok`` of `tests` (state codes -> bool array), the first climbing slope in [0°, 90°]
     where it stops holding, and the state code just past it: [(angle or None, code or None)]."""
-    pts = _breakpoints(model, model.boundary_weights(), 0.0, 90.0)
-    probe = np.concatenate(([pts[0]], (pts[:-1] + pts[1:]) / 2.0))
+    pts, probe = _probes(model, model.boundary_weights())
     codes = model.state(probe).state
     out = []
     for ok in tests:
-        good = ok(codes)
-        if not good[0]:
-            out.append((float(pts[0]), int(codes[0])))
-            continue
-        bad = np.flatnonzero(~good[1:])
-        if bad.size == 0:
-            out.append((None, None))
-        else:
-            i = int(bad[0])
-            out.append((float(pts[i]), int(codes[i + 1])))
+        first = _first_bad(pts, ok(codes))
+        out.append((None, None) if first is None else (first[0], int(codes[first[1]])))
     return out
 
 
@@ -134,17 +142,13 @@ def weight_only_handover_deg(model) -> Optional[float]:
         return None
     (msf, _), (msr, _) = model.mu_f, model.mu_r
     w = (msf, -msr, 0.0) if fast == FRONT else (-msf, msr, 0.0)
-    pts = _breakpoints(model, [w, (1.0, 0.0, 0.0), (0.0, 1.0, 0.0)], 0.0, 90.0)
-    probe = np.concatenate(([pts[0]], (pts[:-1] + pts[1:]) / 2.0))
+    pts, probe = _probes(model, [w, (1.0, 0.0, 0.0), (0.0, 1.0, 0.0)])
     nf, nr = model.loads(probe)
     margin = w[0] * nf + w[1] * nr
     lifted = (nf <= 0) | (nr <= 0)
     # past a lift nothing is handed over; the rule only ranks two loaded axles
-    ok = (margin >= 0) | lifted
-    bad = np.flatnonzero(~ok)
-    if bad.size == 0:
-        return None
-    return float(pts[0]) if bad[0] == 0 else float(pts[bad[0] - 1])
+    first = _first_bad(pts, (margin >= 0) | lifted)
+    return None if first is None else first[0]
 
 
 def saturation_weights(model):
