@@ -46,13 +46,10 @@ class Here(NamedTuple):
     windup_g: Optional[float] = None
 
 
-def here_at(analysis: Analysis, slope_deg: float) -> Here:
-    """The setup's state and tyre figures at one slope, from one evaluation."""
+def _here_of(sweep) -> Here:
+    """The first row of a sweep as a `Here`."""
     import math
 
-    import numpy as np
-
-    sweep = analysis.at(np.array([slope_deg]))
     t = sweep.traction
 
     def num(x):
@@ -63,18 +60,42 @@ def here_at(analysis: Analysis, slope_deg: float) -> Here:
                 (num(t.front_slip_pct), num(t.rear_slip_pct)), num(t.windup_g))
 
 
-def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optional[float]:
+def here_at(analysis: Analysis, slope_deg: float) -> Here:
+    """The setup's state and tyre figures at one slope, from one evaluation."""
+    import numpy as np
+
+    return _here_of(analysis.at(np.array([slope_deg])))
+
+
+class Look(NamedTuple):
+    """The setup at one slope and the slip states around it, within +-LOOKAHEAD_DEG."""
+
+    here: Here
+    window_deg: object  # _LOOK_SAMPLES slopes, evenly spaced over the window [deg]
+    states: object  # the traction state code at each of them
+
+
+def look_at(analysis: Analysis, slope_deg: float) -> Look:
+    """`here_at` and the look-ahead window in one evaluation: each slope's slip solve is its own,
+    so solving them together gives what solving them apart would, with one call per key."""
+    import numpy as np
+
+    lo, hi = max(-90.0, slope_deg - LOOKAHEAD_DEG), min(90.0, slope_deg + LOOKAHEAD_DEG)
+    window = np.linspace(lo, hi, _LOOK_SAMPLES)
+    sweep = analysis.at(np.concatenate(([slope_deg], window)))
+    return Look(_here_of(sweep), window, sweep.traction.state[1:])
+
+
+def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str, look: Look) -> Optional[float]:
     """The nearest slope within +-LOOKAHEAD_DEG where the overdriven axle lets go first, else None."""
     import numpy as np
 
     from slopetune.engine import STATES
 
-    lo, hi = max(-90.0, slope_deg - LOOKAHEAD_DEG), min(90.0, slope_deg + LOOKAHEAD_DEG)
-    probe = np.linspace(lo, hi, _LOOK_SAMPLES)
-    states = analysis.at(probe).traction.state
-    hits = probe[states == STATES.index(fast)]
+    window = look.window_deg
+    hits = window[look.states == STATES.index(fast)]
     handover = handover_deg(analysis)
-    if handover is not None and lo <= handover <= hi:
+    if handover is not None and window[0] <= handover <= window[-1]:
         hits = np.append(hits, handover)  # the exact crossing, when it lies in the window
     if hits.size == 0:
         return None
@@ -82,9 +103,10 @@ def _nearest_fast_slip(analysis: Analysis, slope_deg: float, fast: str) -> Optio
 
 
 def flag_line(analysis: Analysis, slope_deg: float, units: Units,
-              here: Optional[Here] = None) -> tuple[str, str]:
-    """(level, words) of the flag at `slope_deg` (`here`: `here_at` of it, when already known)."""
-    here, axle = (here or here_at(analysis, slope_deg))[:2]
+              look: Optional[Look] = None) -> tuple[str, str]:
+    """(level, words) of the flag at `slope_deg` (`look`: `look_at` of it, when already known)."""
+    look = look or look_at(analysis, slope_deg)
+    here, axle = look.here[:2]
     at = units.slope(slope_deg)
     if here == "lifted":
         tips = "flips backwards" if axle == "front" else "tips forwards"
@@ -96,7 +118,7 @@ def flag_line(analysis: Analysis, slope_deg: float, units: Units,
         return "ok", "OK: no overdrive, no wind-up; nothing fights the grip"
     if here == fast:
         return "warn", f"SLIP FLAG: overdriven {fast} lets go first here, at {at}"
-    near = _nearest_fast_slip(analysis, slope_deg, fast)
+    near = _nearest_fast_slip(analysis, slope_deg, fast, look)
     if near is not None:
         way = "up" if near > slope_deg else "down"
         return "warn", (f"SLIP FLAG: overdriven {fast} lets go first from {units.angle(near)}"
@@ -272,8 +294,9 @@ def compare_line(analysis: Analysis, baseline: Analysis, units: Units) -> str:
 def status_view(analysis: Analysis, units: Units, baseline: Optional[Analysis] = None) -> StatusView:
     """Everything the status pane shows for `analysis` at the setup's slope."""
     slope = float(analysis.setup.terrain.slope_deg)
-    here = here_at(analysis, slope)
-    level, flag = flag_line(analysis, slope, units, here)
+    look = look_at(analysis, slope)
+    here = look.here
+    level, flag = flag_line(analysis, slope, units, look)
     lines = tuple(line for line in (
         _overdrive_line(analysis, units),
         _here_line(analysis, slope, units, here),
