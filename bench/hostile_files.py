@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import asyncio
 import os
-import shutil
 import sys
 import tempfile
 import threading
@@ -26,10 +25,10 @@ if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
 from bench.hostile_places import (  # noqa: E402
-    SOURCE, Result, Unavailable, _edited, _same_bytes, cli, library_load, library_save, one_line, tuner_save,
+    Result, _edited, cli, demo_copy, library_load, library_save, rows_edited_elsewhere, tuner_save,
 )
 from slopetune.engine import load_setup  # noqa: E402
-from slopetune.tui.setup_writer import FileChangedOnDisk, LinkToNowhere, save_setup  # noqa: E402
+from slopetune.tui.setup_writer import LinkToNowhere, save_setup  # noqa: E402
 
 LOAD_BUDGET_S = 2.0
 
@@ -65,9 +64,7 @@ def rows_special_files() -> list[Result]:
 
 def rows_read_only_file() -> list[Result]:
     place = "read-only file"
-    with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
+    with demo_copy() as path:
         path.chmod(0o444)
         rows = [library_save(place, path), cli(place, ["measure", "bias", "--front", "1300", "--write", str(path)], path),
                 tuner_save(place, path)]
@@ -79,10 +76,8 @@ def rows_read_only_file() -> list[Result]:
 
 def rows_hard_link() -> list[Result]:
     place = "hard-linked file"
-    with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
-        os.link(path, Path(tmp) / "same-file.toml")
+    with demo_copy() as path:
+        os.link(path, path.parent / "same-file.toml")
         rows = [library_save(place, path), tuner_save(place, path)]
         if path.stat().st_nlink != 2:
             rows.append(Result(place, "links", "split", "", False, "the hard link was split"))
@@ -92,10 +87,8 @@ def rows_hard_link() -> list[Result]:
 def rows_mode_and_owner() -> list[Result]:
     place = "mode and owner kept"
     rows = []
-    with tempfile.TemporaryDirectory() as tmp:
-        os.chmod(tmp, 0o755)
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
+    with demo_copy() as path:
+        path.parent.chmod(0o755)
         path.chmod(0o664)
         old = os.umask(0o022)
         try:
@@ -119,47 +112,34 @@ def rows_mode_and_owner() -> list[Result]:
         return rows
 
 
+def _edit_keeping_mtime(path: Path) -> bytes:
+    """An outside edit that leaves the modification time as it was (what cp -p and rsync -t leave)."""
+    st = path.stat()
+    path.write_text(path.read_text(encoding="utf-8").replace("mass_g = 2380", "mass_g = 2390"), encoding="utf-8")
+    os.utime(path, ns=(st.st_atime_ns, st.st_mtime_ns))
+    return path.read_bytes()
+
+
 def rows_same_mtime_edit() -> list[Result]:
-    place = "outside edit, mtime kept"
-    with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
-        loaded = load_setup(path)
-
-        def edit_keep_mtime(p: Path) -> bytes:
-            st = p.stat()
-            p.write_text(p.read_text(encoding="utf-8").replace("mass_g = 2380", "mass_g = 2390"), encoding="utf-8")
-            os.utime(p, ns=(st.st_atime_ns, st.st_mtime_ns))  # what cp -p and rsync -t leave
-            return p.read_bytes()
-
-        before = edit_keep_mtime(path)
-        try:
-            save_setup(loaded, _edited(loaded.setup))
-            lib = Result(place, "save_setup", "saved", "", False, "overwrote the outside edit")
-        except FileChangedOnDisk as exc:
-            why = one_line(str(exc), path) or _same_bytes(path, before)
-            lib = Result(place, "save_setup", "refused", str(exc), not why, why)
-        shutil.copyfile(SOURCE, path)
-        return [lib, tuner_save(place, path, change_on_disk=edit_keep_mtime)]
+    return rows_edited_elsewhere("outside edit, mtime kept", _edit_keeping_mtime, "overwrote the outside edit")
 
 
 def rows_save_as_dangling() -> list[Result]:
     place = "save-as via link to nowhere"
-    with tempfile.TemporaryDirectory() as tmp:
-        good = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, good)
-        (Path(tmp) / "elsewhere").mkdir()
-        link = Path(tmp) / "new.toml"
-        link.symlink_to(Path(tmp) / "elsewhere" / "made.toml")
+    with demo_copy() as good:
+        elsewhere = good.parent / "elsewhere"
+        elsewhere.mkdir()
+        link = good.parent / "new.toml"
+        link.symlink_to(elsewhere / "made.toml")
         loaded = load_setup(good)
         try:
             save_setup(loaded, loaded.setup, link)
             lib = Result(place, "save_setup", "saved", "", False, "created a file elsewhere without asking")
         except LinkToNowhere as exc:
-            made = (Path(tmp) / "elsewhere" / "made.toml").exists()
+            made = (elsewhere / "made.toml").exists()
             lib = Result(place, "save_setup", "asked", exc.question, not made, "created the file" if made else "")
         outcome, message = asyncio.run(_tuner_save_as(good, link))
-        made = (Path(tmp) / "elsewhere" / "made.toml").exists()
+        made = (elsewhere / "made.toml").exists()
         why = "" if outcome == "asked" else "did not ask"
         why = why or ("created the file before the answer" if made else "")
         return [lib, Result(place, "tuner save-as", outcome, message, not why, why)]

@@ -116,6 +116,15 @@ def full_disk():
         yield folder / "rig.toml"
 
 
+@contextlib.contextmanager
+def demo_copy():
+    """A copy of the demo setup, rig.toml, alone in a fresh temporary folder; yields its path."""
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "rig.toml"
+        shutil.copyfile(SOURCE, path)
+        yield path
+
+
 # ------------------------------------------------------------------------- checks
 
 def one_line(message: str, path: Path | None = None) -> str:
@@ -300,22 +309,26 @@ def _replace_on_disk(path: Path) -> bytes:
     return path.read_bytes()
 
 
-def rows_changed_on_disk() -> list[Result]:
-    place = "file replaced while open"
-    with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
+def rows_edited_elsewhere(place: str, change, overwrote: str) -> list[Result]:
+    """The file changed by `change(path) -> bytes now on disk` after it was loaded: save_setup and
+    the tuner's Ctrl+S must both refuse (or ask) rather than overwrite it (`overwrote`: the words
+    when they do not)."""
+    with demo_copy() as path:
         loaded = load_setup(path)
-        after = _replace_on_disk(path)
+        after = change(path)
         setup = _edited(loaded.setup)
         try:
             save_setup(loaded, setup)
-            lib = Result(place, "save_setup", "saved", "", False, "overwrote the other program's save")
+            lib = Result(place, "save_setup", "saved", "", False, overwrote)
         except FileChangedOnDisk as exc:
             why = one_line(str(exc), path) or _same_bytes(path, after)
             lib = Result(place, "save_setup", "refused", str(exc), not why, why)
         shutil.copyfile(SOURCE, path)
-        return [lib, tuner_save(place, path, change_on_disk=_replace_on_disk)]
+        return [lib, tuner_save(place, path, change_on_disk=change)]
+
+
+def rows_changed_on_disk() -> list[Result]:
+    return rows_edited_elsewhere("file replaced while open", _replace_on_disk, "overwrote the other program's save")
 
 
 def rows_folder() -> list[Result]:
@@ -372,13 +385,11 @@ def rows_link_to_file() -> list[Result]:
 
 def rows_deleted() -> list[Result]:
     place = "file deleted while open"
-    with tempfile.TemporaryDirectory() as tmp:
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
+    with demo_copy() as path:
         loaded = load_setup(path)
         path.unlink()
         setup = _edited(loaded.setup)
-        saved = save_setup(loaded, setup)
+        save_setup(loaded, setup)
         ok = load_setup(path).setup == setup and "# Gear stages" in path.read_text()
         return [Result(place, "save_setup", "saved", "file written again, comments kept", ok,
                        "" if ok else "the saved file differs")]
@@ -388,10 +399,8 @@ def rows_unreadable() -> list[Result]:
     place = "file the user may not read"
     if os.geteuid() != 0:
         raise Unavailable("needs root to switch to the user nobody")
-    with tempfile.TemporaryDirectory() as tmp:
-        os.chmod(tmp, 0o755)
-        path = Path(tmp) / "rig.toml"
-        shutil.copyfile(SOURCE, path)
+    with demo_copy() as path:
+        path.parent.chmod(0o755)  # nobody may enter the folder, not read the file
         path.chmod(0o600)
         return [cli(place, ["report", str(path)], path, user="65534")]
 
