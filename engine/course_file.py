@@ -14,7 +14,7 @@ from typing import Optional
 
 from .safe_text import one_line
 from .setup_file import BOM, SECTIONS, SetupError, _Reader, parse_toml, read_setup_text
-from .setup_model import SCHEMA_VERSION, Course
+from .setup_model import Course
 
 COURSE_KEYS = ("schema", "course")
 
@@ -48,13 +48,7 @@ def parse_course(text: str, path: str = "<course>") -> tuple[Course, list]:
         if isinstance(v, dict):
             reader.fail(k, f"[{k}]: unknown section; a course file holds schema and [course] only")
         reader.unknown(k, k)
-    if "schema" not in data:
-        raise SetupError(f"schema: missing; required, schema = {SCHEMA_VERSION}", path, 1, "schema")
-    schema = data["schema"]
-    if isinstance(schema, bool) or not isinstance(schema, int) or schema < 1:
-        reader.fail("schema", f"schema = {schema!r}: must be the whole number {SCHEMA_VERSION}")
-    if schema > SCHEMA_VERSION:
-        reader.fail("schema", f"schema = {schema}: newer than this slopetune reads ({SCHEMA_VERSION}); update slopetune")
+    reader.schema()  # the setup file's rule, word for word
     if "course" not in data:
         raise SetupError("[course]: missing section; required (name, points_mm, belly_clearance_mm)", path, None,
                          "course")

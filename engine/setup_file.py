@@ -198,6 +198,16 @@ class _Reader:
             out.append((int(stage[0]), int(stage[1])))
         return tuple(out)
 
+    def schema(self) -> None:
+        """The top-level ``schema``: present, a whole number >= 1 and no newer than this reads."""
+        if "schema" not in self.data:
+            raise SetupError(f"schema: missing; required, schema = {SCHEMA_VERSION}", self.path, 1, "schema")
+        schema = self.data["schema"]
+        if isinstance(schema, bool) or not isinstance(schema, int) or schema < 1:
+            self.fail("schema", f"schema = {_show(schema)}: must be the whole number {SCHEMA_VERSION}")
+        if schema > SCHEMA_VERSION:
+            self.fail("schema", f"schema = {schema}: newer than this slopetune reads ({SCHEMA_VERSION}); update slopetune")
+
     def read(self) -> Setup:
         d = self.data
         for k, v in d.items():
@@ -206,13 +216,7 @@ class _Reader:
             if isinstance(v, dict):
                 self.fail(k, f"[{k}]: unknown section; allowed sections: {', '.join(SECTIONS)}")
             self.unknown(k, k)
-        if "schema" not in d:
-            raise SetupError(f"schema: missing; required, schema = {SCHEMA_VERSION}", self.path, 1, "schema")
-        schema = d["schema"]
-        if isinstance(schema, bool) or not isinstance(schema, int) or schema < 1:
-            self.fail("schema", f"schema = {_show(schema)}: must be the whole number {SCHEMA_VERSION}")
-        if schema > SCHEMA_VERSION:
-            self.fail("schema", f"schema = {schema}: newer than this slopetune reads ({SCHEMA_VERSION}); update slopetune")
+        self.schema()
         if "course" in d and "rig" not in d and set(d) <= {"schema", "course"}:
             raise SetupError("a course file (schema and [course] only), not a setup: walk a rig over it with "
                              "slopetune walk SETUP --course FILE", self.path, None)
