@@ -26,7 +26,8 @@ from ..commands.measure import ONE_AXLE_FORMULA, mu_problem
 from ..units import plain_scrollbars
 from ..widgets.choice import Choice
 from .measure_fields import (
-    FieldProblem, Plain, _fmt, choice_row, field_row, parse_lift_pairs, parse_number, refusal,
+    FieldProblem, Plain, _fmt, choice_row, field_row, parse_lift_pairs, parse_number, refusal, result_row,
+    show_result,
 )
 
 KEYS = "Up/Down: field  Left/Right: choose  Enter: next, then Apply  Esc: cancel"
@@ -97,9 +98,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
     def _result(self, key: str, label: str) -> ComposeResult:
         stem = key.split(".")[1]
         yield Plain("", id=f"{stem}-check", classes="m-check")
-        with Horizontal(classes="m-row"):
-            yield Plain("", id=f"{stem}-result", classes="m-result")
-            yield Button(label, id=f"{stem}-apply", compact=True, classes="m-apply", disabled=True)
+        yield from result_row(stem, label)
 
     def compose(self) -> ComposeResult:
         rig, grip = self.setup.rig, self.setup.grip
@@ -212,10 +211,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
             if why:
                 line, value = f"{line.split('  (')[0]}: {why}", None
         self.results[key] = value
-        result = self.query_one(f"#{stem}-result", Static)
-        result.update(line)
-        result.set_class(value is None, "-bad")
-        self.query_one(f"#{stem}-apply", Button).disabled = value is None
+        show_result(self, stem, line, value is not None)
 
     def _recompute(self) -> None:
         self.total_g = total = self._number("m-total", "rig.mass_g")

@@ -12,7 +12,7 @@ from typing import Optional
 
 from textual.app import ComposeResult
 from textual.containers import Horizontal
-from textual.widgets import Input, Static
+from textual.widgets import Button, Input, Static
 
 from slopetune.engine import Setup, check_value
 from slopetune.engine.setup_model import cross_field_problems, rule_for
@@ -41,6 +41,21 @@ def choice_row(field_id: str, label: str, options: list[tuple[str, str]], index:
         yield Choice(options, index, id=field_id, classes="m-choice")
         yield Plain("", classes="m-unit")
         yield Plain("", id=f"{field_id}-why", classes="m-why")
+
+
+def result_row(stem: str, label: str) -> ComposeResult:
+    """A result line and its Apply button, disabled until `show_result` gives it a usable value."""
+    with Horizontal(classes="m-row"):
+        yield Plain("", id=f"{stem}-result", classes="m-result")
+        yield Button(label, id=f"{stem}-apply", compact=True, classes="m-apply", disabled=True)
+
+
+def show_result(node, stem: str, line: str, usable: bool) -> None:
+    """Write the result line of `result_row` (marked bad unless usable) and enable its Apply."""
+    result = node.query_one(f"#{stem}-result", Static)
+    result.update(line)
+    result.set_class(not usable, "-bad")
+    node.query_one(f"#{stem}-apply", Button).disabled = not usable
 
 
 _PAIR_SPLIT = re.compile(r"[,;]\s*|\s+(?=\S+\s*:)")

@@ -9,19 +9,19 @@ from __future__ import annotations
 
 import math
 import re
-from functools import partial
 from typing import Optional
 
 from textual import on, work
 from textual.app import ComposeResult
-from textual.containers import Horizontal, Vertical
+from textual.containers import Vertical
 from textual.widgets import Button, Input, Static
 
 from slopetune.engine import Setup
 from slopetune.engine.ballast import combine_ballast
 from slopetune.engine.slip_calibration import board_rolling_dia_mm, slip_test
 
-Plain = partial(Static, markup=False)
+from .measure_fields import Plain, field_row, result_row, show_result
+
 
 STIFFNESS_DIGITS = 1
 SETTLE_S = 0.12
@@ -76,28 +76,18 @@ class SlipStiffnessForm(Vertical):
 
     # ---- layout -------------------------------------------------------------------------------
 
-    def _field(self, field_id: str, label: str, value: str, unit: str, wide: bool = False) -> ComposeResult:
-        from .measure_fields import field_row
-
-        yield from field_row(field_id, label, value, unit, wide)
-
-    def _result(self, stem: str, label: str) -> ComposeResult:
-        with Horizontal(classes="m-row"):
-            yield Plain("", id=f"{stem}-result", classes="m-result")
-            yield Button(label, id=f"{stem}-apply", compact=True, classes="m-apply", disabled=True)
-
     def compose(self) -> ComposeResult:
         yield Plain("Slip stiffness c, slip test: one axle drives, count tyre turns", classes="m-heading")
         yield Plain(SLIP_TEST_HOW, classes="m-note")
-        yield from self._field("m-slip-axle", "Driving axle", "rear", "", )
-        yield from self._field("m-slip-dia", "Roll-out diameter", "", "mm")
-        yield from self._field("m-slip-runs", "Runs deg:turns:mm", "", "", wide=True)
-        yield from self._result("slip_test", "Apply c")
+        yield from field_row("m-slip-axle", "Driving axle", "rear", "")
+        yield from field_row("m-slip-dia", "Roll-out diameter", "", "mm")
+        yield from field_row("m-slip-runs", "Runs deg:turns:mm", "", "", wide=True)
+        yield from result_row("slip_test", "Apply c")
         yield Plain("Slip stiffness c, ramp test (a check): the handover on a board", classes="m-heading")
         yield Plain(RAMP_STEPS, classes="m-note")
-        yield from self._field("m-ramp", "Handover seen", "", "deg")
+        yield from field_row("m-ramp", "Handover seen", "", "deg")
         yield Plain("", id="ramp-check", classes="m-check")
-        yield from self._result("ramp", "Apply c")
+        yield from result_row("ramp", "Apply c")
 
     def on_mount(self) -> None:
         self.query_one("#m-slip-runs", Input).placeholder = "e.g. 10:8:2650, 14:8:2600"
@@ -116,10 +106,7 @@ class SlipStiffnessForm(Vertical):
 
     def _show(self, stem: str, value: Optional[tuple[str, float]], line: str) -> None:
         self.values[stem] = value
-        result = self.query_one(f"#{stem}-result", Static)
-        result.update(line)
-        result.set_class(value is None, "-bad")
-        self.query_one(f"#{stem}-apply", Button).disabled = value is None
+        show_result(self, stem, line, value is not None)
 
     # ---- slip test ----------------------------------------------------------------------------
 
