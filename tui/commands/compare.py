@@ -3,13 +3,13 @@
 from __future__ import annotations
 
 import argparse
-import json
 import math
-import sys
 from pathlib import Path
 from typing import Callable, Optional
 
 from slopetune.engine import analyse, load_setup
+
+from ._output import print_json, print_warnings
 
 HELP = """\
 Several setups side by side in one table of 80 columns: the rig with its
@@ -149,12 +149,10 @@ def register(sub) -> None:
 def run(args) -> int:
     loaded = [load_setup(f) for f in args.files]  # SetupError: one line, exit 2
     for ld in loaded:
-        for w in ld.warnings:
-            print(f"slopetune: warning: {w}", file=sys.stderr)
+        print_warnings(ld.warnings)
     analyses = [analyse(ld.setup) for ld in loaded]
     if args.json:
-        json.dump(compare_dict([str(f) for f in args.files], analyses), sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(compare_dict([str(f) for f in args.files], analyses))
         return 0
     print("Setups compared" + (" (differences against 1)" if len(analyses) > 1 else "") + "; angles in degrees:")
     for i, (f, ld) in enumerate(zip(args.files, loaded), 1):

@@ -3,9 +3,7 @@
 from __future__ import annotations
 
 import argparse
-import json
 import math
-import sys
 import textwrap
 
 from slopetune.engine import SetupError, load_setup
@@ -14,6 +12,7 @@ from ..heading_words import (CAUTION, LIMIT_SHORT, heading_label, heading_text, 
                              margins_line, summary_lines)
 from ..units import Units
 from ._args import number
+from ._output import print_json, print_warnings
 
 HELP = """\
 Tip, first wheel lift and hold angle of one setup at every heading across a plane face.
@@ -118,12 +117,10 @@ def run(args) -> int:
     from slopetune.engine.heading_sweep import heading_sweep
 
     loaded = load_setup(args.file)
-    for w in loaded.warnings:
-        print(f"slopetune: warning: {w}", file=sys.stderr)
+    print_warnings(loaded.warnings)
     hs = heading_sweep(loaded.setup, heading_steps(args.step))
     if args.json:
-        json.dump(headings_dict(hs), sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(headings_dict(hs))
     else:
         print(headings_text(loaded.setup, hs))
     return 0

@@ -7,7 +7,6 @@ handover at each trial c, so the range it reports is what `report` would show.
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 
@@ -18,6 +17,7 @@ from slopetune.engine.ballast import combine_ballast
 from slopetune.engine.slip_calibration import board_rolling_dia_mm, handover_range, slip_test
 
 from ._args import ArgumentRefused, number
+from ._output import print_json
 
 RAMP_HELP = """\
 Ramp test (a check on the slip stiffness c). Unwind the driveline before each run (roll back a
@@ -123,8 +123,7 @@ def run_ramp(args) -> int:
                "handover_deg": args.handover, "tolerance_deg": args.tolerance,
                "rigid_handover_deg": _c(found.rigid_deg), "latest_handover_deg": _c(found.latest_deg),
                "max_grade_deg": _c(found.max_grade_deg), "words": found.words}
-        json.dump(out, sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(out)
     else:
         print(found.words + ".")
         if value is not None:
@@ -188,9 +187,7 @@ def run_test(args) -> int:
                  "slip_pct": round(100 * float(runs.sigma[i]), 3),
                  "grip_used": round(float(runs.grip_used[i]), 4), "slip_stiffness": _c(runs.stiffness[i])}
                 for i, (d, t, x) in enumerate(args.run)]
-        json.dump({"axle": args.axle, "slip_stiffness": value, "runs": rows}, sys.stdout,
-                  indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json({"axle": args.axle, "slip_stiffness": value, "runs": rows})
     else:
         print(f"{args.axle} slip stiffness c {value:g} (slip test, {n_used} run{'s' if n_used > 1 else ''}, "
               f"{other} driveshaft out)")

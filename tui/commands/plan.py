@@ -7,7 +7,6 @@ planning screen, so the command line and the screen say the same thing.
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import re
 import sys
@@ -19,6 +18,8 @@ from slopetune.engine.goal_seek import (
     TARGET_ANGLES, AddBallast, CgHeight, Compound, LeverError, MoveBallast, Overdrive, Plan, Target,
     angle_value_deg, plan,
 )
+
+from ._output import print_json, print_warnings
 
 HELP = """\
 Find the smallest change of one lever that brings a named angle to a target,
@@ -360,8 +361,7 @@ def run(args) -> int:
     except (PlanSyntaxError, LeverError) as exc:
         return _fail(str(exc))
     loaded = load_setup(args.file)
-    for w in loaded.warnings:
-        print(f"slopetune: warning: {w}", file=sys.stderr)
+    print_warnings(loaded.warnings)
     if args.name is not None and not args.name.strip():
         return _fail("--name: give some text, e.g. --name \"brass weights\"")
     try:
@@ -394,8 +394,7 @@ def run(args) -> int:
 
     if args.json:
         out = {"file": str(args.file), "name": loaded.setup.name, **plan_dict(result), "written": written}
-        json.dump(out, sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(out)
         if write_note and not written:
             print(f"slopetune plan: {write_note}", file=sys.stderr)
     else:

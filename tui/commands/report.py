@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import math
 import sys
 
@@ -13,6 +12,7 @@ from slopetune.engine import SetupError, analyse, load_setup
 from ..status_words import slip_lines, status_view
 from ._args import number
 from ..units import Units
+from ._output import print_json, print_warnings
 
 HELP = """\
 Analyse one setup over a range of slopes.
@@ -185,8 +185,7 @@ def report_text(a) -> str:
 
 def run(args) -> int:
     loaded = load_setup(args.file)
-    for w in loaded.warnings:
-        print(f"slopetune: warning: {w}", file=sys.stderr)
+    print_warnings(loaded.warnings)
     if args.accel is not None and not (math.isfinite(args.accel) and -2.0 <= args.accel <= 2.0):
         raise SetupError(f"--accel {args.accel:g}: must be a number from -2 to 2 [g]", "command line")
     slopes = slope_range(args.start, args.stop, args.step)
@@ -195,8 +194,7 @@ def run(args) -> int:
               " (the weight-only handover is shown as a rule of thumb)", file=sys.stderr)
     a = analyse(loaded.setup, slopes, accel_g=args.accel)
     if args.json:
-        json.dump(report_dict(a), sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(report_dict(a))
     else:
         print(report_text(a))
     return 0

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 
@@ -18,6 +17,7 @@ from slopetune.engine.setup_file import find_line
 
 from ._args import number
 from .report import table_cell as _fmt
+from ._output import print_json, print_warnings
 
 HELP = """\
 Walk the rig over a course (a course file given with --course, or the setup's own [course]):
@@ -193,12 +193,10 @@ def run(args) -> int:
     if not (math.isfinite(args.step) and args.step > 0):
         raise SetupError(f"--step {args.step:g}: must be a number of mm > 0", "command line")
     loaded = load_setup(args.file)
-    for warning in loaded.warnings:
-        print(f"slopetune: warning: {warning}", file=sys.stderr)
+    print_warnings(loaded.warnings)
     if args.course is not None:
         course_file = load_course(args.course)
-        for warning in course_file.warnings:
-            print(f"slopetune: warning: {warning}", file=sys.stderr)
+        print_warnings(course_file.warnings)
         course, where, text = course_file.course, str(args.course), course_file.text
     elif loaded.setup.course is not None:
         course, where, text = loaded.setup.course, str(args.file), loaded.text
@@ -216,8 +214,7 @@ def run(args) -> int:
         line = find_line(text, key) if key else None
         raise SetupError(exc.reason, where if key else "command line", line) from None
     if args.json:
-        json.dump(walk_dict(w), sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        print_json(walk_dict(w))
     else:
         print(walk_text(w))
     return 0
