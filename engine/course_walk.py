@@ -45,7 +45,7 @@ from .course_loads import solve_loads
 from .course_geometry import RigPose, concat_poses, place_rig, rig_paths, vertices_within
 from .setup_file import SetupError
 from .setup_model import Course, Setup
-from .traction import BOTH, FRONT, LIFTED, NONE, REAR, STATES
+from .traction import BOTH, FRONT, LIFTED, NONE, STATES
 
 DEFAULT_STEP_MM = 5.0
 MAX_POSITIONS = 200_000  # a typo in --step should not eat the memory

@@ -60,7 +60,6 @@ References
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from typing import Optional
 

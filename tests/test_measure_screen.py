@@ -12,7 +12,7 @@ from textual.widgets import Button, Input, Static
 from slopetune.engine import load_setup
 from slopetune.tui.screens.measure import MeasureScreen
 
-from test_screens import NO_RESULT, STOCK, run_screen, screen_text
+from test_screens import STOCK, run_screen
 
 
 def _hand_worked_setup():

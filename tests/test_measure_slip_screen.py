@@ -3,13 +3,11 @@ the per-axle key; the ramp test explains itself step by step and reports a range
 
 from __future__ import annotations
 
-import math
-
 from textual.widgets import Button, Input, Static
 
 from slopetune.engine import parse_setup
 from slopetune.tui.screens.measure import MeasureScreen
-from test_screens import run_screen, screen_text
+from test_screens import run_screen
 from test_slip_calibration import HAND_RIG
 
 

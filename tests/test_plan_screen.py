@@ -10,12 +10,13 @@ import asyncio
 import math
 from pathlib import Path
 
-from rich.console import Console
 from textual.app import App, ComposeResult
 from textual.widgets import Label
 
 from slopetune.engine import load_setup
 from slopetune.tui.screens.plan import Choice, PlanScreen
+
+from test_screens import screen_text
 
 ROOT = Path(__file__).resolve().parent.parent
 STOCK = load_setup(ROOT / "setups" / "marmot-stock.toml").setup
@@ -34,12 +35,6 @@ async def settle(pilot):
     await pilot.pause(0.2)
     await pilot.app.workers.wait_for_complete()
     await pilot.pause()
-
-
-def screen_text(app) -> str:
-    console = Console(width=app.size.width, record=True, file=open("/dev/null", "w"), color_system=None)
-    console.print(app.screen._compositor.render_update(full=True))
-    return console.export_text()
 
 
 def run_screen(setup, script):

@@ -22,7 +22,6 @@ import sys
 from dataclasses import replace
 from pathlib import Path
 
-import numpy as np
 import pytest
 from scipy.optimize import brentq
 

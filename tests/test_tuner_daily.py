@@ -10,22 +10,15 @@ from __future__ import annotations
 import asyncio
 from pathlib import Path
 
-from rich.console import Console
-
 from slopetune.engine import load_setup
 from slopetune.tui.app import SlopeTuneApp
 from slopetune.tui.widgets.setup_form import SetupForm
 
+from test_screens import screen_text
+
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
 SIZE = (80, 24)
-
-
-def screen_text(app) -> str:
-    """The characters on the whole screen as the terminal would show them."""
-    console = Console(width=app.size.width, record=True, file=open("/dev/null", "w"), color_system=None)
-    console.print(app.screen._compositor.render_update(full=True))
-    return console.export_text()
 
 
 def run(coro):

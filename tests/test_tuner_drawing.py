@@ -20,7 +20,6 @@ from rich.text import Text
 
 from slopetune.engine import load_setup
 from slopetune.tui.app import SlopeTuneApp
-from slopetune.tui.widgets.setup_form import SetupForm
 from slopetune.tui.units import Units
 from slopetune.tui.widgets import load_chart as lc
 from slopetune.tui.widgets.line_strips import changed_cells, text_strip

@@ -5,8 +5,7 @@ Pure functions of an `engine.heading_sweep.HeadingSweep`; no widget code.
 
 from __future__ import annotations
 
-import math
-from typing import TYPE_CHECKING, Optional
+from typing import TYPE_CHECKING
 
 from .units import Units
 

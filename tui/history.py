@@ -48,20 +48,18 @@ class History:
 
     def undo(self) -> Optional[Step]:
         """The step to take back (show its `before`), or None when there is nothing to undo."""
-        if not self.done:
-            return None
-        step = self.done.pop()
-        self.undone.append(step)
-        self._last_key = None
-        return step
+        return self._move(self.done, self.undone)
 
     def redo(self) -> Optional[Step]:
         """The step to do again (show its `after`), or None."""
-        if not self.undone:
+        return self._move(self.undone, self.done)
+
+    def _move(self, source: list, target: list) -> Optional[Step]:
+        if not source:
             return None
-        step = self.undone.pop()
-        self.done.append(step)
-        self._last_key = None
+        step = source.pop()
+        target.append(step)
+        self._last_key = None  # the next key starts a step of its own
         return step
 
     def clear(self) -> None:

@@ -26,7 +26,7 @@ from pathlib import Path
 from typing import Optional
 
 import tomlkit
-from tomlkit.items import AoT, Array, InlineTable, Table
+from tomlkit.items import AoT, Array, Table
 
 from slopetune.engine import LoadedSetup, Setup, SetupError, parse_setup
 from slopetune.engine.setup_file import BOM, file_bytes
