@@ -55,3 +55,23 @@ def test_ramp_test_is_explained_step_by_step():
 def test_ramp_reading_below_the_rigid_handover_fits_no_c():
     result, out = _screen_with({"m-ramp": "0.5"})
     assert "no c fits" in out["ramp-check"].lower() and out["ramp-disabled"]
+
+
+def test_driving_axle_field_says_which_shaft_comes_out_and_marks_only_a_bad_word():
+    # common practice, no source: a field is marked refused only when its value is refused
+    setup = parse_setup(HAND_RIG, "hand.toml")[0]
+    seen = {}
+
+    async def script(pilot, screen):
+        for text in ("front", "middle", "rear"):
+            screen.query_one("#m-slip-axle", Input).value = text
+            await pilot.pause(0.3)
+            seen[text] = (str(screen.query_one("#m-slip-axle-why", Static).render()),
+                          screen.query_one("#m-slip-axle", Input).has_class("-bad"),
+                          screen.query_one("#m-slip-axle-why", Static).has_class("-bad"))
+        await pilot.press("escape")
+
+    run_screen(MeasureScreen(setup, ascii_only=True), script)
+    assert seen["front"] == ("rear shaft out", False, False)
+    assert seen["middle"] == ("rear or front", True, True)
+    assert seen["rear"] == ("front shaft out", False, False)

@@ -26,7 +26,7 @@ from ..commands.measure import ONE_AXLE_FORMULA, mu_problem
 from ..units import plain_scrollbars
 from ..widgets.choice import Choice
 from .measure_fields import (
-    FieldProblem, Plain, _fmt, choice_row, field_row, parse_lift_pairs, parse_number, refusal, result_row,
+    FieldProblem, Plain, _fmt, choice_row, field_row, parse_lift_pairs, parse_number, refusal, result_row, say,
     show_result,
 )
 
@@ -156,11 +156,7 @@ class MeasureScreen(ModalScreen[dict[str, float] | None]):
 
     def _say(self, field_id: str, why: str, warn: bool = False) -> None:
         """Show `why` beside the field (a refusal, or with `warn` a warning), or its note when fine."""
-        note = self.query_one(f"#{field_id}-why", Static)
-        note.update(why or self._notes.get(field_id, ""))
-        note.set_class(bool(why) and not warn, "-bad")
-        note.set_class(bool(why) and warn, "-warn")
-        self.query_one(f"#{field_id}").set_class(bool(why), "-bad")
+        say(self, field_id, why, self._notes.get(field_id, ""), warn)
 
     def _number(self, field_id: str, key: Optional[str] = None, positive: bool = False) -> Optional[float]:
         """The field's number, or None with the reason shown beside it."""

@@ -43,6 +43,16 @@ def choice_row(field_id: str, label: str, options: list[tuple[str, str]], index:
         yield Plain("", id=f"{field_id}-why", classes="m-why")
 
 
+def say(node, field_id: str, why: str, note: str = "", warn: bool = False) -> None:
+    """Show `why` beside a field of `field_row` or `choice_row` (a refusal, or with `warn` a
+    warning), else its `note`."""
+    line = node.query_one(f"#{field_id}-why", Static)
+    line.update(why or note)
+    line.set_class(bool(why) and not warn, "-bad")
+    line.set_class(bool(why) and warn, "-warn")
+    node.query_one(f"#{field_id}").set_class(bool(why), "-bad")
+
+
 def result_row(stem: str, label: str) -> ComposeResult:
     """A result line and its Apply button, disabled until `show_result` gives it a usable value."""
     with Horizontal(classes="m-row"):

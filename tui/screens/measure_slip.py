@@ -20,7 +20,7 @@ from slopetune.engine import Setup
 from slopetune.engine.ballast import combine_ballast
 from slopetune.engine.slip_calibration import board_rolling_dia_mm, slip_test
 
-from .measure_fields import Plain, field_row, result_row, show_result
+from .measure_fields import Plain, field_row, result_row, say, show_result
 
 
 STIFFNESS_DIGITS = 1
@@ -98,12 +98,6 @@ class SlipStiffnessForm(Vertical):
 
     # ---- helpers ------------------------------------------------------------------------------
 
-    def _say(self, field_id: str, why: str) -> None:
-        note = self.query_one(f"#{field_id}-why", Static)
-        note.update(why)
-        note.set_class(bool(why), "-bad")
-        self.query_one(f"#{field_id}", Input).set_class(bool(why), "-bad")
-
     def _show(self, stem: str, value: Optional[tuple[str, float]], line: str) -> None:
         self.values[stem] = value
         show_result(self, stem, line, value is not None)
@@ -113,11 +107,10 @@ class SlipStiffnessForm(Vertical):
     def _slip_test(self) -> None:
         axle = self.query_one("#m-slip-axle", Input).value.strip().lower()
         if axle not in ("rear", "front"):
-            self._say("m-slip-axle", "rear or front")
+            say(self, "m-slip-axle", "rear or front")
             axle = None
         else:
-            self._say("m-slip-axle", f"{'front' if axle == 'rear' else 'rear'} shaft out")
-            self.query_one("#m-slip-axle-why", Static).set_class(False, "-bad")
+            say(self, "m-slip-axle", "", note=f"{'front' if axle == 'rear' else 'rear'} shaft out")
         typed = self.query_one("#m-slip-dia", Input).value.strip()
         dia_ok = True
         if typed:
@@ -125,14 +118,13 @@ class SlipStiffnessForm(Vertical):
                 dia = float(typed.replace(",", "."))
                 if not 1.0 <= dia <= 1e4:
                     raise ValueError
-                self._say("m-slip-dia", "")
+                say(self, "m-slip-dia", "")
             except ValueError:
-                self._say("m-slip-dia", "a diameter, 1 to 10000")
+                say(self, "m-slip-dia", "a diameter, 1 to 10000")
                 dia_ok = False
         else:
             dia = None  # the file's roll-out at the axle's load on the board, per run
-            self._say("m-slip-dia", "")
-            self.query_one("#m-slip-dia-why", Static).update("at the board's load")
+            say(self, "m-slip-dia", "", note="at the board's load")
         text = self.query_one("#m-slip-runs", Input).value
         runs = None
         if text.strip():
@@ -141,12 +133,12 @@ class SlipStiffnessForm(Vertical):
                 bad = next((r for r in runs if not (0 < r[0] < 90 and 0 < r[1] <= 1e4 and 0 < r[2] <= 1e7)), None)
                 if bad:
                     raise ValueError(f"{bad[0]:g}:{bad[1]:g}:{bad[2]:g}: angle 0-90, turns and mm above 0")
-                self._say("m-slip-runs", "")
+                say(self, "m-slip-runs", "")
             except ValueError as exc:
-                self._say("m-slip-runs", str(exc))
+                say(self, "m-slip-runs", str(exc))
                 runs = None
         else:
-            self._say("m-slip-runs", "")
+            say(self, "m-slip-runs", "")
         if axle is None or not dia_ok or runs is None:
             self._show("slip_test", None, "c by slip test: needs the axle, the diameter and runs")
             return
@@ -159,7 +151,7 @@ class SlipStiffnessForm(Vertical):
                           [r[2] for r in runs], axle=axle)
         if found.problems:
             i, why = found.problems[0]
-            self._say("m-slip-runs", f"run {i + 1}: see below")
+            say(self, "m-slip-runs", f"run {i + 1}: see below")
         if not math.isfinite(found.stiffness_fit):
             i, why = found.problems[0]
             self._show("slip_test", None, f"run {i + 1}: {why}")
@@ -181,7 +173,7 @@ class SlipStiffnessForm(Vertical):
         check.update("")
         check.display = False
         if not text:
-            self._say("m-ramp", "")
+            say(self, "m-ramp", "")
             self._show("ramp", None, "c by ramp: needs the handover you saw")
             return
         if text in ("none", "never"):
@@ -192,10 +184,10 @@ class SlipStiffnessForm(Vertical):
                 if not (math.isfinite(reading) and 0 <= reading < 90):
                     raise ValueError
             except ValueError:
-                self._say("m-ramp", "an angle 0 to 90, or none")
+                say(self, "m-ramp", "an angle 0 to 90, or none")
                 self._show("ramp", None, "c by ramp: needs the handover you saw")
                 return
-        self._say("m-ramp", "")
+        say(self, "m-ramp", "")
         self._show("ramp", None, "c by ramp: working it out...")
         self._work_ramp(reading, text)
 
