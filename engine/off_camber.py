@@ -314,11 +314,12 @@ class AlongHeading:
     def state_codes(self, state, codes) -> np.ndarray:
         """Traction codes (`codes`: the FRONT, REAR, BOTH, LIFTED of `traction`) with a sideways
         slide as BOTH, a scrubbing axle that cannot carry its sideways share (``t >= μ_k``: it
-        crabs off downhill) as BOTH, and a roll-over as LIFTED."""
+        crabs off downhill) as BOTH, and a roll-over as LIFTED. An axle off the ground stays
+        LIFTED: it outranks every other state (MODEL section 5)."""
         front, rear, both, lifted = codes
         crab = ((state == front) & (self.side_demand >= self.kinetic[0])) | (
             (state == rear) & (self.side_demand >= self.kinetic[1]))
-        out = np.where(self.slides | crab, both, state)
+        out = np.where((self.slides | crab) & (state != lifted), both, state)
         return np.where(self.rolls, lifted, out).astype(np.int8)
 
 

@@ -313,6 +313,8 @@ def test_along_heading_is_the_planar_model_at_heading_0_and_slides_and_rolls_acr
     assert b.mu_rear[0][0] == pytest.approx(math.sqrt(0.81 - math.tan(math.radians(41.0)) ** 2))
     codes = b.state_codes(np.zeros(4, dtype=np.int8), (1, 2, 3, 4))
     assert codes.tolist() == [0, 3, 3, 4]
+    # an axle off the ground (code 4 from the slip solve) outranks the slide (MODEL section 5, rule 1)
+    assert b.state_codes(np.full(4, 4, dtype=np.int8), (1, 2, 3, 4)).tolist() == [4, 4, 4, 4]
     # the crab rule: a scrubbing rear (code 2) past t = μ_k,r = 0.7 (tan β = 0.7 at 35°) lets go
     c = oc.along_heading(1000.0, 300.0, 150.0, 100.0, 250.0, np.array([34.0, 36.0]), 90.0, 0.0, 0.0,
                          (1.0, 0.8), (0.9, 0.7))
