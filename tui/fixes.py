@@ -17,7 +17,7 @@ from typing import NamedTuple, Optional
 
 from slopetune.engine import Analysis, Setup
 
-from .status_words import LOOKAHEAD_DEG, flag_line, here_at
+from .status_words import LOOKAHEAD_DEG, flag_line, look_at
 from .units import Units
 
 MARGIN_DEG = 1.0  # past the look-ahead (slip) or the slope (lift, grip): clear of the boundary
@@ -47,10 +47,10 @@ def target_for(analysis: Analysis):
     from slopetune.engine.goal_seek import Target
 
     slope = float(analysis.setup.terrain.slope_deg)
-    found_here = here_at(analysis, slope)
-    if flag_line(analysis, slope, Units(ascii_only=True), found_here)[0] == "ok":
+    look = look_at(analysis, slope)
+    if flag_line(analysis, slope, Units(ascii_only=True), look)[0] == "ok":
         return None  # the flag is down (e.g. on a heading where the straight climb's handover is near)
-    here, axle = found_here[:2]
+    here, axle = look.here[:2]
     if here == "lifted":
         return Target("front_lift", ">=", round(slope + MARGIN_DEG, 1)) if axle == "front" else None
     if here == "both":
