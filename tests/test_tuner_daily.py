@@ -7,7 +7,6 @@ test: ballast combines by first moments of mass (any statics text, e.g. Meriam &
 
 from __future__ import annotations
 
-import asyncio
 from pathlib import Path
 
 from slopetune.engine import load_setup
@@ -15,26 +14,17 @@ from slopetune.tui.app import SlopeTuneApp
 from slopetune.tui.widgets.setup_form import SetupForm
 
 from test_screens import screen_text
+from test_tuner import _app, run  # the tuner with the held-key rate limits off
 
 ROOT = Path(__file__).resolve().parent.parent
 DEMO = ROOT / "setups" / "marmot-overdrive.toml"
 SIZE = (80, 24)
 
 
-def run(coro):
-    return asyncio.run(coro)
-
-
 def _copy(tmp_path: Path, text: str | None = None) -> Path:
     target = tmp_path / "rig.toml"
     target.write_text(DEMO.read_text(encoding="utf-8") if text is None else text, encoding="utf-8")
     return target
-
-
-def _app(path: Path, **kw) -> SlopeTuneApp:
-    app = SlopeTuneApp(load_setup(path), **kw)
-    app.word_updates.every_s = app.chart_updates.every_s = 0.0
-    return app
 
 
 def test_undo_and_redo_steps_typed_values_and_the_unsaved_marker(tmp_path):
