@@ -187,7 +187,7 @@ def _grip_used(force, normal, mu_static, sliding):
 
 def _rigid_slip_state(nf, nr, f_req, mu_front, mu_rear, speed_ratio):
     """The Coulomb rule per element (``c = inf`` on both axles), slips 0 on gripping axles."""
-    (msf, mkf), (msr, mkr) = mu_front, mu_rear  # scalars or arrays: `traction_state` broadcasts
+    (msf, _mkf), (msr, _mkr) = mu_front, mu_rear  # scalars or arrays: `traction_state` broadcasts
     ratio = np.broadcast_to(np.asarray(speed_ratio, float), f_req.shape)
     tol = SAME_SPEED_TOL  # below it the mismatch is rounding noise, not an overdrive
     pick = {None: np.abs(ratio - 1.0) <= tol, "front": ratio - 1.0 > tol, "rear": ratio - 1.0 < -tol}

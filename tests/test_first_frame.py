@@ -34,7 +34,7 @@ def test_reading_a_setup_and_the_childs_work_load_no_textual_and_no_numpy_before
     child's modules (chart data, status words) stay free of Textual."""
     code = f"""
 import sys
-from slopetune.tui import cli, app_main, prefetch, chart_data, status_words, slopes, units
+from slopetune.tui import cli, app_main, prefetch, chart_data, chart_plot, status_words, slopes, units
 cli.tuner_parser().parse_args([{str(DEMO)!r}])
 app_main.load_setup({str(DEMO)!r})
 heavy = [m for m in ("numpy", "textual", "plotext", "tomlkit", "importlib.metadata") if m in sys.modules]
@@ -103,5 +103,56 @@ def test_a_first_screen_for_another_setup_is_not_shown():
             own = analyse(loaded.setup, slope_grid(False))
             assert app.chart.data == chart_data(own, units)
             assert app.status.view == status_view(own, units)
+
+    asyncio.run(go())
+
+
+@pytest.mark.parametrize("columns,rows", [(80, 24), (100, 30), (120, 40), (79, 24), (80, 23), (60, 20), (200, 60)])
+def test_expected_chart_size_is_the_laid_out_widgets_size(columns, rows):
+    """The start-up child draws the first chart at `expected_chart_size`: it must be the size the
+    tuner's layout (app.tcss) gives the chart widget, at wide, normal and cramped terminals."""
+    from slopetune.tui.chart_plot import expected_chart_size
+
+    async def go():
+        app = SlopeTuneApp(load_setup(DEMO))
+        async with app.run_test(size=(columns, rows)) as pilot:
+            await pilot.pause()
+            size = app.chart.size
+            assert (size.width, size.height) == expected_chart_size(columns, rows)
+
+    asyncio.run(go())
+
+
+@pytest.mark.parametrize("ascii_only", [False, True])
+def test_a_chart_drawn_by_the_child_shows_as_the_widget_would_draw_it(ascii_only, monkeypatch):
+    """The first frame from the child's plotext text (slope marker drawn by plotext) has the same
+    characters and colours as the widget's own drawing (marker laid over a cached build), and runs
+    no plotext in this process."""
+    from slopetune.tui.chart_plot import expected_chart_size
+
+    loaded = load_setup(DEMO)
+    monkeypatch.setenv("SLOPETUNE_PREFETCH", "1")
+    child = prefetch.start(loaded.setup, None, ascii_only, (80, 24))
+    if child is None:
+        pytest.skip("no fork here: the tuner starts without the child")
+    first = child.result()
+    width, height = expected_chart_size(80, 24)
+    assert first.plot[:2] == (width, height - 1)
+
+    def lines(app):
+        # spans sorted: the two drawings list the same non-overlapping spans in another order
+        return [(line.plain, sorted((s.start, s.end, str(s.style)) for s in line.spans)) for line in app.chart._lines]
+
+    async def go():
+        drawn = SlopeTuneApp(loaded, first_screen=first, ascii_only=ascii_only)
+        own = SlopeTuneApp(loaded, first_screen=first._replace(plot=None), ascii_only=ascii_only)
+        seen = []
+        for app in (drawn, own):
+            async with app.run_test(size=(80, 24)) as pilot:
+                await pilot.pause()
+                seen.append((lines(app), app.chart.builds))
+        (child_lines, child_builds), (own_lines, own_builds) = seen
+        assert child_lines == own_lines and len(child_lines) == height
+        assert child_builds == 0 and own_builds == 1
 
     asyncio.run(go())

@@ -13,7 +13,6 @@ import shutil
 from functools import lru_cache
 from pathlib import Path
 
-import numpy as np
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st

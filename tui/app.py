@@ -85,6 +85,8 @@ class TunerScreen(Screen):
         status = StatusPane(self._first_note, id="status")
         if self._first is not None:
             flag.show(self._first.view.level, self._first.view.flag)
+            if self._first.plot is not None:
+                chart.preset(self._first.chart, *self._first.plot)  # drawn by the child: no plotext here
             chart.show(self._first.chart)
             status.view = self._first.view
         yield TitleBar(*self._title, id="title")
@@ -243,6 +245,7 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
     def _first_analysis(self) -> None:
         if self.analysis is None:  # no key has analysed the setup yet
             self._recompute(baseline_too=True, chart_now=False)
+        self.chart.warm_up()  # plotext, before the first key needs it
 
     def _resume_gc(self) -> None:
         """After the first chart: collect start-up's garbage once, then keep the collector's later

@@ -103,20 +103,24 @@ def run_tuner(args) -> int:
     try:
         from . import prefetch
 
-        # before Textual loads: a child works out the first screen on the other core meanwhile
-        child = prefetch.start(loaded.setup, baseline.setup if baseline else None, plain)
+        # before Textual loads: a child works out the first screen on the other core meanwhile,
+        # its chart drawn for this terminal's size (Textual asks the same `shutil` for it)
+        import shutil
+
+        size = shutil.get_terminal_size()
+        child = prefetch.start(loaded.setup, baseline.setup if baseline else None, plain,
+                               (size.columns, size.lines))
 
         from .app import SlopeTuneApp  # after the files are read: a bad file never starts Textual
 
         first = None
-        if child is not None:
-            # the child is usually done by now: with plotext loaded too, the first frame is the
-            # whole screen, chart included (else it follows a frame later, as without a child)
+        if child is not None and child.ready(FIRST_SCREEN_WAIT_S):
+            # the child is usually done by now: the first frame is the whole screen, chart included
+            first, child = child.result(), None
+        if first is not None and first.plot is None:
             from .widgets.load_chart import load_plotext
 
-            load_plotext()
-            if child.ready(FIRST_SCREEN_WAIT_S):
-                first, child = child.result(), None
+            load_plotext()  # the chart is drawn here, in the first frame
         driver = _folding_driver(charset) if plain and sys.platform != "win32" else None
         app = SlopeTuneApp(loaded, baseline=baseline, ascii_only=plain, driver_class=driver, prefetch=child,
                            first_screen=first)

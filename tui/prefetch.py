@@ -24,8 +24,11 @@ class FirstScreen(NamedTuple):
     """What the child sends back: the chart's data and the status words for the file's setup."""
 
     setup: object  # the engine Setup it was worked out for (the parent checks it is still current)
-    chart: object  # widgets.load_chart.ChartData
+    chart: object  # chart_data.ChartData
     view: object  # status_words.StatusView
+    # plotext's text of that chart at the size the widget is expected to have on the terminal
+    # the parent saw: (width, height, text), or None (no terminal size, or too small to draw)
+    plot: Optional[tuple] = None
 
 
 class Prefetch:
@@ -84,9 +87,10 @@ def spare_core() -> bool:
     return cores >= 2 and load <= cores - 1
 
 
-def start(setup, baseline_setup, ascii_only: bool) -> Optional[Prefetch]:
-    """Fork a child that works out the first screen of `setup`; None where that cannot be done
-    or would not help (no fork, no spare core, `SLOPETUNE_PREFETCH=0`)."""
+def start(setup, baseline_setup, ascii_only: bool, terminal: Optional[tuple[int, int]] = None) -> Optional[Prefetch]:
+    """Fork a child that works out the first screen of `setup` (and draws its chart for a
+    `terminal` of (columns, rows), when given); None where that cannot be done or would not help
+    (no fork, no spare core, `SLOPETUNE_PREFETCH=0`)."""
     if not hasattr(os, "fork") or sys.platform == "win32":
         return None
     setting = os.environ.get("SLOPETUNE_PREFETCH", "auto")
@@ -109,7 +113,8 @@ def start(setup, baseline_setup, ascii_only: bool) -> Optional[Prefetch]:
             devnull = os.open(os.devnull, os.O_RDWR)
             for fd in (0, 1, 2):
                 os.dup2(devnull, fd)
-            data = pickle.dumps(_first_screen(setup, baseline_setup, ascii_only), protocol=pickle.HIGHEST_PROTOCOL)
+            answer = _first_screen(setup, baseline_setup, ascii_only, terminal)
+            data = pickle.dumps(answer, protocol=pickle.HIGHEST_PROTOCOL)
             view = memoryview(data)
             while view:
                 view = view[os.write(write_fd, view):]
@@ -122,16 +127,23 @@ def start(setup, baseline_setup, ascii_only: bool) -> Optional[Prefetch]:
     return Prefetch(pid, read_fd)
 
 
-def _first_screen(setup, baseline_setup, ascii_only: bool) -> FirstScreen:
+def _first_screen(setup, baseline_setup, ascii_only: bool, terminal: Optional[tuple[int, int]] = None) -> FirstScreen:
     from slopetune.engine import analyse
 
+    from .chart_data import chart_data
+    from .chart_plot import MIN_HEIGHT, MIN_WIDTH, expected_chart_size, plot_text
     from .slopes import slope_grid
     from .status_words import status_view
     from .units import Units
-    from .chart_data import chart_data
 
     units = Units(imperial=False, ascii_only=ascii_only)
     slopes = slope_grid(False)
     analysis = analyse(setup, slopes)
     base = analyse(baseline_setup, slopes) if baseline_setup is not None else None
-    return FirstScreen(setup, chart_data(analysis, units, base), status_view(analysis, units, base))
+    data = chart_data(analysis, units, base)
+    plot = None
+    if terminal is not None:
+        width, height = expected_chart_size(*terminal)
+        if width >= MIN_WIDTH and height >= MIN_HEIGHT:
+            plot = (width, height - 1, plot_text(data, width, height - 1, ascii_only))  # the last row: legend
+    return FirstScreen(setup, data, status_view(analysis, units, base), plot)

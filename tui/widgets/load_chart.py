@@ -1,7 +1,8 @@
-"""The load chart: front and rear normal force against slope. The only module that knows plotext.
+"""The load chart: front and rear normal force against slope, the adapter around plotext.
 
-Swap the chart library by rewriting this file: the rest of the tuner only calls
-`LoadChart.show(ChartData)` and `chart_data(...)`.
+Swap the chart library by rewriting this file and `chart_plot.py` (plotext's drawing, kept free of
+Textual for the start-up child): the rest of the tuner only calls `LoadChart.show(ChartData)` and
+`chart_data(...)`.
 
 Cheap on a slow board, in three ways. plotext draws everything but the marker at the setup's
 slope, cached on (data less that slope, size, styles), so stepping the slope, the value tuned most,
@@ -24,37 +25,17 @@ from textual.strip import Strip
 from textual.widget import Widget
 
 from ..chart_data import ChartData, Curves, chart_data  # noqa: F401 - part of the chart's door
+from ..chart_plot import (ASCII_FOLD, MIN_HEIGHT, MIN_WIDTH, _TAGS, _fold, _plotext,  # noqa: F401
+                          load_plotext, nice_step, plot_text)
 from .line_strips import changed_regions, text_strip
 from .style_cache import StyleCache
 
-# plotext draws in these standard colours; `render` swaps them for the theme's styles, so the
-# numbers are tags, not colours.
-_TAGS = {"front": ("red", 1), "rear": ("green", 2), "marks": ("yellow", 3), "slope": ("blue", 4),
-         "base": ("magenta", 5)}
 _STYLE_OF_NUMBER = {number: name for name, (_colour, number) in _TAGS.items()}
-
-# Box-drawing characters plotext uses for its frame and lines, as ASCII for --ascii / TERM=linux.
-ASCII_FOLD = str.maketrans({
-    "\u2500": "-", "\u2502": "|", "\u250c": "+", "\u2510": "+", "\u2514": "+", "\u2518": "+",
-    "\u251c": "+", "\u2524": "+", "\u252c": "+", "\u2534": "+", "\u253c": "+", "\u2022": "*",
-    "\u00b7": ".",
-})
 # The marker at the setup's slope, as plotext draws a vertical line: in the canvas, and as a tick
 # on the top and bottom borders.
 SLOPE_MARK = {False: ("\u2502", "\u252c", "\u2534"), True: ("|", "+", "+")}
-MIN_WIDTH, MIN_HEIGHT = 24, 6
 NAMED_MARKS = (("B", "balance", "bal"), ("H", "handover", "hand"), ("L", "front lift", "lift"),
                ("N", "rear lift (nose over)", "nose"), ("M", "max grade", "max"))
-
-
-def nice_step(top: float, count: int) -> float:
-    """A round tick step (1, 2, 2.5 or 5 times a power of ten) giving about `count` ticks up to `top`."""
-    raw = max(top, 1e-9) / max(count, 1)
-    power = 10.0 ** math.floor(math.log10(raw))
-    for m in (1.0, 2.0, 2.5, 5.0, 10.0):
-        if m * power >= raw:
-            return m * power
-    return 10.0 * power
 
 
 class Frame(NamedTuple):
@@ -112,6 +93,9 @@ class LoadChart(Widget):
         self._lines: list[Text] = []
         self._strips: list[Optional[Strip]] = []
         self.builds = 0  # how many times plotext ran: lets tests check the coalescing
+        # plotext's text of the first chart, drawn elsewhere (the start-up child) for a size:
+        # ((data, width, height, ascii_only), text); used while nothing else is asked for
+        self._drawn = None
 
     def refresh(self, *regions: Region, **kwargs) -> Widget:
         if not regions and hasattr(self, "_style_cache"):
@@ -121,6 +105,16 @@ class LoadChart(Widget):
     @property
     def data(self) -> Optional[ChartData]:
         return self._data
+
+    def preset(self, data: ChartData, width: int, height: int, text: str) -> None:
+        """plotext's whole chart (slope marker included, `plot_text` of `data` at `width` x `height`
+        cells, legend row not counted) drawn by someone else: shown while the data and the size
+        match, so a first frame needs no plotext here."""
+        self._drawn = ((data, width, height, self.ascii_only), text)
+
+    def warm_up(self) -> None:
+        """Import plotext now (after the first frame), so the first key does not wait for it."""
+        load_plotext()
 
     def show(self, data: ChartData) -> None:
         """New data: repaint only the chart lines that differ from what is on screen."""
@@ -160,6 +154,11 @@ class LoadChart(Widget):
         self._lines, self._lines_key = lines, key
 
     def _chart_lines(self, data: ChartData, width: int, height: int, styles: dict[str, Style]) -> list[Text]:
+        if self._drawn is not None and self._drawn[0] == (data, width, height - 1, self.ascii_only):
+            text = self._drawn[1]  # already folded for ASCII by `plot_text`
+            lines = restyle(Text.from_ansi(text, no_wrap=True, end=""), styles).split("\n", allow_blank=True)
+            return [*lines, legend(data, width, self.ascii_only, styles)]
+        self._drawn = None  # the data or the size moved on: from here plotext draws here
         layer = self._layer_for(data, width, height - 1, styles)
         lines = slope_overlay(layer, data, self.ascii_only, styles["slope"])
         return [*lines, legend(data, width, self.ascii_only, styles)]
@@ -191,72 +190,6 @@ class LoadChart(Widget):
         """The whole chart as one text (what `render_line` draws, line by line)."""
         self._draw(self.size)
         return Text("\n").join(self._lines)
-
-
-def _line_markers(ascii_only: bool) -> tuple[str, str, str]:
-    """Markers for front, rear and baseline: ASCII characters, or braille dots where fonts have them."""
-    if ascii_only:
-        return "*", "o", "."
-    return "braille", "braille", "braille"
-
-
-def load_plotext() -> None:
-    """Import plotext now (start-up: when the first frame will draw the chart anyway)."""
-    import plotext  # noqa: F401
-
-
-def _plotext(data: ChartData, width: int, height: int, ascii_only: bool, slope_line: bool) -> str:
-    """plotext's ANSI text of the chart, `width` x `height` cells, box lines not folded (colours are tags)."""
-    import plotext as plt  # lazily: importing plotext is slow and the first frame does not need it
-
-    front_m, rear_m, base_m = _line_markers(ascii_only)
-    lo, hi = data.x_range
-    plt.clear_data()  # every setting below is set again on each build; clf would cost 1 ms more
-    plt.limit_size(False, False)  # the widget, not plotext's guess of the terminal, sets the size
-    plt.plotsize(width, height)
-    plt.theme("clear")
-    plt.xlim(lo, hi)
-    # headroom above the heaviest load for the mark letters on the top row
-    y_top = data.y_top * 1.08
-    y_step = nice_step(data.y_top, max(2, min(5, (height - 4) // 2)))
-    plt.ylim(0, y_top)
-    y_ticks = [i * y_step for i in range(math.ceil(y_top / y_step))]
-    plt.yticks(y_ticks, [f"{t:g}" for t in y_ticks])
-    step = 15 if hi - lo <= 90 else 30
-    ticks = list(range(math.ceil(lo / step) * step, int(hi) + 1, step))
-    plt.xticks(ticks, [str(t) for t in ticks])
-    if data.baseline is not None and data.baseline.slope_deg:
-        b = data.baseline
-        plt.plot(list(b.slope_deg), list(b.front), marker=base_m, color=_TAGS["base"][0])
-        plt.plot(list(b.slope_deg), list(b.rear), marker=base_m, color=_TAGS["base"][0])
-    c = data.current
-    if c.slope_deg:
-        # the rear first, the front over it: where the lines meet the front (the overdriven axle's
-        # load, the one the flag is about) stays drawn, and the rear shows on either side
-        plt.plot(list(c.slope_deg), list(c.rear), marker=rear_m, color=_TAGS["rear"][0])
-        plt.plot(list(c.slope_deg), list(c.front), marker=front_m, color=_TAGS["front"][0])
-    if slope_line and lo <= data.slope_deg <= hi:
-        plt.vline(data.slope_deg, _TAGS["slope"][0])
-    for letter, angle in data.marks:
-        plt.text(letter, angle, y_top, color=_TAGS["marks"][0], alignment="center")
-    if c.slope_deg:
-        # the axle's initial at the end of its curve, so the curves read without colour
-        plt.text("F", c.slope_deg[-1], c.front[-1] + y_top * 0.06, color=_TAGS["front"][0], alignment="right")
-        plt.text("R", c.slope_deg[-1], c.rear[-1] + y_top * 0.06, color=_TAGS["rear"][0], alignment="right")
-    plt.xlabel("slope [deg]")
-    plt.ylabel(f"normal force [{data.unit}]")
-    return plt.build().rstrip("\n")
-
-
-def _fold(text: str) -> str:
-    """Box lines as ASCII, the rest within Latin-1, one character for one."""
-    return text.translate(ASCII_FOLD).encode("latin-1", "replace").decode("latin-1")
-
-
-def plot_text(data: ChartData, width: int, height: int, ascii_only: bool) -> str:
-    """plotext's ANSI text of the whole chart, slope marker included (colours are tags, see _TAGS)."""
-    text = _plotext(data, width, height, ascii_only, slope_line=True)
-    return _fold(text) if ascii_only else text
 
 
 def build_layer(data: ChartData, width: int, height: int, ascii_only: bool, styles: dict[str, Style]) -> Layer:
