@@ -5,14 +5,16 @@ roll-out diameters under load (MODEL §4), and on ground of two angles the loads
 the tyre forces (the wind-up pair has a moment): each position's loads ``N`` must reproduce their
 own K, ``N = S(K(N))`` with ``S`` the contact statics of `engine.contact_statics`.
 
-Where the slip state flips with K there can be no such loads; the onset rule of MODEL §5 then
-decides (see `solve_loads`).
+K is one number per position, so its fixed point is a scalar root, found on the gripping branch
+with a bracket; the onset rule of MODEL §5 then decides the state (see `solve_loads`).
 
 References
 ----------
 .. [1] H. B. Pacejka, *Tire and Vehicle Dynamics*, 3rd ed., 2012, ch. 3 (rolling radius, brush model).
-.. [2] R. L. Burden, J. D. Faires, *Numerical Analysis*, 9th ed., 2011, sec. 2.5 (Aitken's Δ²
-   method and Steffensen's method for fixed-point iteration).
+.. [2] R. L. Burden, J. D. Faires, *Numerical Analysis*, 9th ed., 2011, sec. 2.3 (the secant
+   method and the method of false position) and sec. 2.5 (Aitken's Δ² method).
+.. [3] M. Dowell, P. Jarratt, "A modified regula falsi method for computing the root of an
+   equation", *BIT* 11, 1971, pp. 168–174 (the Illinois method).
 """
 
 from __future__ import annotations
@@ -20,11 +22,15 @@ from __future__ import annotations
 import numpy as np
 
 from .contact_statics import ContactLoads, CourseTraction, solve_contacts
+from .traction import NONE
 
-_K_PASSES = 12  # at most: a plain pass shrinks the change 3-30x, an extrapolated one far more
-_K_PASSES_UNDECIDED = 8  # a 2-cycle with no gripping solution to decide it stops here, as it always did
-_K_TOL = 1e-9  # share of the weight: the loads no longer move, K matches them
-_AITKEN_MAX_RATIO = 0.9  # extrapolate a change that shrinks by a steady ratio up to this
+_K_PASSES = 16  # passes on the gripping branch at most (most positions settle in 2-6)
+_K_PASSES_PLAIN = 8  # with no gripping solution the loads jump with K: a 2-cycle stops here, as it always did
+_K_TOL = 1e-9  # share of the weight: one more pass would move the loads less than this
+_K_REL = 1e-11  # K reproduces its own loads to this share
+_STEP_MAX = 8.0  # before a bracket: a secant step of at most this many plain steps
+
+_GRIP, _PLAIN, _LET_GO, _DONE = range(4)
 
 
 def _rolling_dia(level_mm, loss_mm_per_100g, free_mm, normal_g, level_g):
@@ -34,30 +40,44 @@ def _rolling_dia(level_mm, loss_mm_per_100g, free_mm, normal_g, level_g):
 
 
 def solve_loads(setup, rig, gear, pose, keys):
-    """Loads, slip states and K at each pose, the loads reproducing their own K: ``N = S(K(N))``.
+    """Loads, slip states and K at each pose, decided at the onset from a gripping start (MODEL §5).
 
-    `S` is the contact statics at a speed ratio, ``K(N)`` the rolling diameters under the loads
-    (MODEL §4). From the level loads each position is iterated until its loads move less than
-    ``_K_TOL`` of the weight; the solve of that last pass is the result, so its loads reproduce
-    its K. Where the last three iterates share a slip state the change shrinks by a steady ratio
-    per pass, and it is extrapolated to its limit (Aitken's Δ² process [2]_); the result is still
-    a plain solve that meets the same test.
+    MODEL §5: "Each slope is evaluated as the onset from an unwound driveline: the rig set down at
+    that slope and starting to creep, with no scrub already going on. (Because μ_k < μ_s, a scrub
+    that has started can outlast its onset; see the band below.)" and "A scrub that has started
+    continues while it is self-consistent" (the persistence band). So the tyres grip until the
+    gripping solution can no longer hold, and the state is the onset's. With K under load (MODEL
+    §4) the gripping solution must also reproduce its own K. At every position, with roll-out losses:
 
-    Where the slip state flips with K there may be no fixed point: the gripping solution's loads
-    give a K at which an axle saturates, and the loads after it lets go give a K at which it would
-    grip, so the iteration comes back to the loads of two passes before (a 2-cycle). MODEL §5
-    decides every state at the onset, from an unwound driveline: by the gripping solution, before
-    any axle lets go. Such a position is then iterated on the gripping solution's own loads (they
-    change continuously with K while the same root is followed, so they have a fixed point) and
-    takes the state at that K:
+    1. The gripping branch. ``G(K)`` is the gripping solution of the statics at K (the root of the
+       force balance, each tyre on its brush curve and at most ``±μ_s N``, before any axle lets
+       go); its loads change continuously with K. ``g(K) = K(G(K)) − K = 0`` is solved for the
+       scalar K: a plain pass first (``K_1 = K(G(K_0))`` from the level loads, as a plain
+       iteration would), then secant steps (Aitken's Δ² in K [2]_) until ``g`` changes sign, then
+       the secant inside that bracket, false position with the Illinois safeguard [3]_ where it
+       would leave it. The pitch term of a pass is taken at the loads the branch is expected to
+       have at its K (linear from the last two passes). Converged when K and the pitch term
+       reproduce the loads to ``_K_REL`` and one more plain pass would move them less than
+       ``_K_TOL`` of the weight.
+    2. No axle saturates there: "both grip", with those loads and K, a fixed point of the whole
+       statics. Where an axle that had already let go would also stay let go (a second
+       self-consistent answer), that answer is the persistence band's, not the onset's.
+    3. An axle saturates there: it lets go (or both slip), with the loads it leaves, and K at those
+       loads (they depend on K only through which axle slides and which way). Solved again at that
+       K: the same state and loads, a fixed point too. Otherwise no loads reproduce their own K (at
+       the K of the loads after letting go a fresh onset would not let go): the onset's state
+       stands, and the position is flagged ``no_fixed_point``.
 
-    - nothing saturates there: it is a fixed point of `S` as well, and the result;
-    - an axle saturates: it lets go. The result is that state, with the loads after it let go
-      (they depend on K only through the direction of sliding) and K at those loads, at which a
-      fresh onset would grip again. These positions are flagged ``no_fixed_point``.
+    Where no gripping solution exists at a K visited (both slip, binds, a lift) and with rigid tyres
+    the loads depend on K only through which axle is faster or slides which way: they are iterated
+    plainly, ``N ← S(K(N))``, until they stop moving; one that flips with K (a 2-cycle, nothing to
+    decide it) is left at pass ``_K_PASSES_PLAIN``, as before.
 
-    With no gripping solution to decide (rigid tyres, where the faster axle flips with K; both
-    slipping; binds) a 2-cycle is left as it always was: the solve of pass ``_K_PASSES_UNDECIDED``.
+    On a uniform slope the loads do not depend on the tyre forces: step 1 ends after its plain pass,
+    and steps 2 and 3 give the uniform-slope solve at the K of the grade loads. Where only one
+    answer reproduces its own K and it lets an axle go, the gripping solution saturates an axle at
+    its own K, and step 3 gives the state found there; where that is the same state, it is that
+    answer. Where `g` has several roots the bracket finds one of them.
 
     Parameters
     ----------
@@ -87,6 +107,9 @@ def solve_loads(setup, rig, gear, pose, keys):
     rho = np.where(outside, 1.0, pose.path_ratio)
     rate = np.where(outside, 0.0, pose.pitch_rate_rad_per_mm)
     tol = _K_TOL * rig.mass_g
+    # K can only come out between its values at the clamped diameters, so a step never goes past
+    k_min = gear * 0.5 * dia_f / rig.tire_dia_rear_mm
+    k_max = gear * rig.tire_dia_front_mm / (0.5 * dia_r)
 
     def speed(n_g, at):
         """K and the pitch term at loads `n_g` (shape (m, 2)) of the positions `at`."""
@@ -100,73 +123,151 @@ def solve_loads(setup, rig, gear, pose, keys):
         return np.where(np.isfinite(n_g), n_g, level)
 
     count = rho.shape[0]
-    y = np.tile(level, (count, 1))  # the loads the next K comes from
-    prev = np.full((count, 2), np.nan)  # the iterate before y ...
-    chained = np.zeros(count, dtype=bool)  # ... of which y is the plain image (no extrapolation)
-    prev_state = np.full(count, -1)
-    onset = np.zeros(count, dtype=bool)  # a 2-cycle was found: iterate on the gripping solve's loads
-    undecided = np.zeros(count, dtype=bool)  # a 2-cycle with no gripping solution (rigid tyres)
-    settled = np.zeros(count, dtype=bool)
-    last = np.zeros((count, 2))  # the loads of each position's last solve
-    todo = np.ones(count, dtype=bool)
-    passes = _K_PASSES if (loss_f or loss_r) else 1
-    loads = k = q = None
-    for done_passes in range(1, passes + 1):
-        at = np.flatnonzero(todo)
-        y_at = y[at]
-        k_now, q_now = speed(y_at, at)
+    rigid = np.isinf(c_f) and np.isinf(c_r)
+    mode = np.full(count, _PLAIN if rigid else _GRIP)
+    k_next, q_next = speed(np.tile(level, (count, 1)), np.arange(count))
+    y = np.tile(level, (count, 1))  # plain: the loads K came from; let go: the loads it left
+    plain_passes = np.zeros(count, dtype=int)
+    root = _RootFind(count)
+    onset_state = np.full(count, -1)
+    no_fixed_point = np.zeros(count, dtype=bool)
+    k_out, q_out = k_next.copy(), q_next.copy()
+    loads = None
+    for _ in range(_K_PASSES + 1 if (loss_f or loss_r) else 1):
+        at = np.flatnonzero(mode != _DONE)
+        if at.size == 0:
+            break
+        k_now, q_now = k_next[at], q_next[at]
         part = solve_contacts(
             rig.mass_g, pose.front_contact_mm[at], pose.rear_contact_mm[at], pose.cg_mm[at],
             pose.front_angle_deg[at], pose.rear_angle_deg[at], pose.pitch_deg[at], (fs, fk), (rs, rk),
             c_f, c_r, k_now, q_now, rho[at], setup.grip.rolling_resistance, setup.terrain.accel_g,
         )
-        if loads is None:
-            loads, k, q = part, k_now, q_now
-        else:  # only the positions still moving were solved again: put them back in place
-            k, q = k.copy(), q.copy()
-            k[at], q[at] = k_now, q_now
-            loads = _put_back(loads, part, todo)
         state = part.traction.state
         x = pair(part.front_normal_g, part.rear_normal_g)
-        last[at] = x
+        was = mode[at]
         if part.onset_front_normal_g is None:  # the rigid solve: no gripping solution
-            o, gripping = x, np.zeros(at.shape, dtype=bool)
+            o, gripping = x, np.zeros(at.size, dtype=bool)
         else:  # NaN: no gripping solution (both slide, binds)
             o = np.stack((part.onset_front_normal_g, part.onset_rear_normal_g), axis=-1)
             gripping = np.all(np.isfinite(o) & (o > 0), axis=-1)
-            o = np.where(gripping[:, None], o, x)
-        target = np.where(onset[at, None], o, x)
-        done = np.max(np.abs(target - y_at), axis=-1) <= tol
-        # back at the iterate before last: a 2-cycle, which never settles
-        back = ~done & chained[at] & (np.max(np.abs(target - prev[at]), axis=-1) <= tol)
-        cycle = back & ~onset[at] & gripping
-        undecided[at[back & ~gripping]] = True
-        target = np.where(cycle[:, None], o, target)
-        onset[at[cycle]] = True
-        # Aitken's Δ² where the last three iterates share a state and the change shrinks steadily
-        d1, d2 = y_at - prev[at], target - y_at
+        m = np.where((was == _GRIP) & ~gripping, _PLAIN, was)  # plain from here on
+        k_x, q_x = speed(x, at)
+        k_new, q_new = k_x, q_x
+
+        # 1. the gripping branch: a step of the root find of g(K) = K(G(K)) − K
+        gr = m == _GRIP
+        if gr.any():
+            i = at[gr]
+            k_o, q_o = speed(o[gr], i)
+            settled, k_step, n_pred = root.step(i, k_now[gr], q_now[gr], k_o, q_o, o[gr], tol, k_min, k_max)
+            # 2. nothing saturates at the fixed point: both grip; 3. an axle saturates: it lets go
+            state_g = state[gr]
+            # (where the loads it left give this K again, as on a uniform slope, this solve is the fixed point)
+            again = np.abs(k_x[gr] - k_now[gr]) + np.abs(q_x[gr] - q_now[gr]) <= _K_REL * k_now[gr]
+            m[gr] = np.where(settled, np.where((state_g == NONE) | again, _DONE, _LET_GO), _GRIP)
+            onset_state[i] = np.where(settled, state_g, -1)
+            k_new[gr] = np.where(settled, k_new[gr], k_step)
+            q_new[gr] = np.where(settled, q_new[gr], speed(n_pred, i)[1])
+        # 3. solved again at the K of the loads it left: the same state, or no fixed point
+        let_go = was == _LET_GO
+        same = (state == onset_state[at]) & (np.max(np.abs(x - y[at]), axis=-1) <= tol)
+        flagged = let_go & ~same
+        no_fixed_point[at[flagged]] = True
+        m[let_go] = _DONE
+        # plain passes: done when the loads reproduce the K they came from, or at the cap
+        plain = m == _PLAIN
+        plain_passes[at[plain]] += 1
+        fixed = (was == _PLAIN) & (np.max(np.abs(x - y[at]), axis=-1) <= tol)
+        m[plain & (fixed | (plain_passes[at] >= _K_PASSES_PLAIN))] = _DONE
+
+        keep = ~flagged  # the onset's solve stands where no loads reproduce their own K
+        if loads is None:
+            loads = part
+        else:  # only the positions still moving were solved again: put them back in place
+            where = np.zeros(count, dtype=bool)
+            where[at[keep]] = True
+            loads = _put_back(loads, _take(part, keep), where)
+        # K at the loads shown (for a flagged position: those it left, at which this pass was solved)
+        k_out[at], q_out[at] = k_now, q_now
+        k_next[at], q_next[at] = k_new, q_new
+        y[at] = x
+        mode[at] = m
+    mismatch = np.where(outside, np.nan, (k_out + q_out) / rho)
+    return loads, k_out, mismatch, outside, no_fixed_point
+
+
+class _RootFind:
+    """A safeguarded root find of ``g(K)`` for many positions at once, one step per pass.
+
+    Until ``g`` changes sign: a plain step ``K + g`` first (the fixed-point pass), then the secant
+    through the last two points (Aitken's Δ² in K [2]_) when it heads where ``g`` points, between one
+    and ``_STEP_MAX`` plain steps long (the fixed point may attract slowly; where it repels the step
+    doubles). Once ``g`` has changed sign: the secant while it stays inside the bracket, else false
+    position with the end kept twice running halved (Illinois [3]_). The pitch term of the next pass
+    is taken at the loads the branch is expected to have there (linear in K from the last two
+    passes), so the points of one bracket agree on it to second order.
+    """
+
+    def __init__(self, count):
+        self.k = np.full(count, np.nan)  # K, g and the loads of the last pass
+        self.g = np.full(count, np.nan)
+        self.q = np.full(count, np.nan)
+        self.n = np.full((count, 2), np.nan)
+        self.lo = np.full((count, 2), np.nan)  # (K, g) with g > 0
+        self.hi = np.full((count, 2), np.nan)  # (K, g) with g < 0
+        self.side = np.zeros(count, dtype=int)  # the end replaced last: +1 lo, −1 hi
+        self.passes = np.zeros(count, dtype=int)
+
+    def step(self, at, k, q, k_o, q_o, n, tol, k_min, k_max):
+        """(settled, the next K, the loads expected there) after a pass at `k`, `q` gave loads `n`.
+
+        Settled when K reproduces its loads (``K(n)`` and the pitch term at `n` within ``_K_REL``)
+        and one more plain pass would move the loads less than `tol`, or at ``_K_PASSES``.
+        """
+        g = k_o - k
+        self.passes[at] += 1
+        k_prev, g_prev, q_prev, n_prev = self.k[at], self.g[at], self.q[at], self.n[at]
         with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = np.sum(d1 * d2, axis=-1) / np.sum(d1 * d1, axis=-1)
-        leap = (chained[at] & ~cycle & (state == prev_state[at]) & np.isfinite(ratio)
-                & (np.abs(ratio) <= _AITKEN_MAX_RATIO))
-        ahead = np.where(leap[:, None], target + (ratio / (1.0 - ratio))[:, None] * d2, target)
-        prev[at], y[at] = y_at, ahead
-        chained[at] = ~leap
-        prev_state[at] = state
-        settled[at[done]] = True
-        todo[at[done]] = False
-        if done_passes >= _K_PASSES_UNDECIDED:
-            todo &= ~undecided
-        if not todo.any():
-            break
-    # the onset rule let an axle go: its loads are not those K came from; K follows the loads shown
-    no_fixed_point = onset & settled & (np.max(np.abs(last - prev), axis=-1) > tol)
-    if no_fixed_point.any():
-        at = np.flatnonzero(no_fixed_point)
-        k, q = k.copy(), q.copy()
-        k[at], q[at] = speed(last[at], at)
-    mismatch = np.where(outside, np.nan, (k + q) / rho)
-    return loads, k, mismatch, outside, no_fixed_point
+            moved = np.max(np.abs(n - n_prev), axis=-1)
+            # |dN/dK| along the branch times the change of K (and pitch term) one more pass makes
+            ahead = np.where(moved > 0, moved / (np.abs(k - k_prev) + np.abs(q - q_prev)), 0.0)
+            ahead = ahead * (np.abs(g) + np.abs(q_o - q))
+            settled = (ahead <= tol) & (np.abs(g) + np.abs(q_o - q) <= _K_REL * k)
+        settled |= self.passes[at] >= _K_PASSES
+
+        rising = g > 0
+        sign = np.where(rising, 1, -1)
+        bracketed = np.isfinite(self.lo[at, 0]) & np.isfinite(self.hi[at, 0])
+        stuck = bracketed & (self.side[at] == sign)
+        self.hi[at[stuck & rising], 1] *= 0.5
+        self.lo[at[stuck & ~rising], 1] *= 0.5
+        point = np.stack((k, g), axis=-1)
+        self.lo[at[rising]], self.hi[at[~rising]] = point[rising], point[~rising]
+        self.side[at] = sign
+        (k_lo, g_lo), (k_hi, g_hi) = self.lo[at].T, self.hi[at].T
+        bracketed = np.isfinite(k_lo) & np.isfinite(k_hi)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            false_position = (k_lo * g_hi - k_hi * g_lo) / (g_hi - g_lo)
+            secant = k - g * (k - k_prev) / (g - g_prev)
+            inside = (secant - k_lo) * (secant - k_hi) < 0
+            toward = np.isfinite(secant) & ((secant - k) * g > 0)
+            size = np.where(toward, np.abs(secant - k), 2.0 * np.abs(k - k_prev))
+            size = np.clip(np.nan_to_num(size), np.abs(g), _STEP_MAX * np.abs(g))
+            outward = np.where(np.isfinite(k_prev), k + sign * size, k + g)
+            k_next = np.where(bracketed, np.where(inside, secant, false_position), np.clip(outward, k_min, k_max))
+            # the loads expected at the next K, for its pitch term
+            n_pred = n + (n - n_prev) * ((k_next - k) / (k - k_prev))[:, None]
+        n_pred = np.where(np.isfinite(n_pred), n_pred, n)
+        self.k[at], self.g[at], self.q[at], self.n[at] = k, g, q, n
+        return settled, k_next, n_pred
+
+
+def _take(loads: ContactLoads, where) -> ContactLoads:
+    """The positions `where` of `loads`."""
+    t = loads.traction
+    traction = CourseTraction(**{f: getattr(t, f)[where] for f in CourseTraction.__dataclass_fields__})
+    return ContactLoads(loads.front_normal_g[where], loads.rear_normal_g[where], traction)
 
 
 def _put_back(whole: ContactLoads, part: ContactLoads, where) -> ContactLoads:

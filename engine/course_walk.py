@@ -8,7 +8,9 @@ last one. The course is the setup's own ``[course]`` or one given separately (a 
 Per position: the pose (`engine.course_geometry`), the path ratio ``ρ`` and pitch rate of the two
 wheel centres, the driveline's speed ratio ``K = g D_f(N_f)/D_r(N_r)`` with the rolling diameters
 under this position's loads, and the two-contact statics with tyre slip at that K
-(`engine.course_loads`: a fixed point, as the loads depend on ``K`` through the tyre forces). The
+(`engine.course_loads`: a fixed point, as the loads depend on ``K`` through the tyre forces; the
+state is the onset from a gripping start, MODEL §5: both grip wherever the gripping solution
+reproduces its own K without saturating an axle). The
 axle that is overdriven at a place is the one on its side of
 ``s_f/s_r = (K + (g − 1) r_f dφ/ds_r)/ρ = 1``, not the one the gears favour: where the front centre
 climbs faster than the rear (``ρ > K``) an overdriven front is kinematically underdriven and the
@@ -87,8 +89,9 @@ class CourseWalk:
     speed_ratio: np.ndarray  # K at each position's loads [-]
     mismatch: np.ndarray  # s_f/s_r with the rear rolling: (K + pitch term)/ρ [-]
     events: tuple  # CourseEvent, in course order
-    # True where the state flips with K and no loads reproduce their own K: the onset rule let an
-    # axle go (see `engine.course_loads.solve_loads`); K is at the loads after it let go
+    # True where no loads reproduce their own K: at the gripping solution's own K an axle saturates
+    # and lets go (the onset rule, `engine.course_loads.solve_loads`), and at the K of the loads it
+    # leaves a fresh onset would grip; K is at the loads shown (those after it let go)
     no_fixed_point: Optional[np.ndarray] = None
 
     @property

@@ -196,3 +196,37 @@ async def _chart_rows():
         lines = chart.render().plain.splitlines()
         plot_rows = [ln for ln in lines if ln.strip().startswith(("|", "+", "2", "1", "0")) and "|" in ln]
         assert len(plot_rows) >= 6
+
+
+def test_status_says_where_the_onset_rule_decided():
+    """A position with no steady K (engine.course_walk.CourseWalk.no_fixed_point) says so in the
+    status words, within 78 columns at 80x24; its neighbours do not. The longest combination (a
+    state with its qualifier, the belly touching and the onset note) still fits in one line."""
+    asyncio.run(_onset_status())
+
+
+async def _onset_status():
+    from slopetune.engine.course_walk import state_words
+    from slopetune.engine.traction import REAR
+    from slopetune.tui.course_screen import ONSET_WORDS, doing_line
+
+    app = Host(_kestrel_setup(), ascii_only=True)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = app.screen
+        await _ready(pilot, screen)
+        flagged = [i for i, f in enumerate(screen.walk.no_fixed_point) if f]
+        assert flagged, "the demo walk no longer has a position with no steady K"
+        status = screen.query_one(CourseStatus)
+        before = flagged[0] - 1
+        for key, times in (("pagedown", before // 10), ("right", before % 10)):
+            for _ in range(times):
+                await pilot.press(key)
+        for i in (flagged[0] - 1, flagged[0]):
+            await pilot.pause()
+            assert status.index == i
+            words = status.words()
+            assert all(len(line) <= 78 for line in words.splitlines())
+            assert (ONSET_WORDS in words) == (i in flagged)
+            await pilot.press("right")
+    longest = doing_line(state_words(REAR, "rear"), True, True)
+    assert len(longest) <= 78 and "belly" in longest and ONSET_WORDS in longest

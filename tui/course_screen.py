@@ -204,6 +204,27 @@ def _pct(x) -> str:
     return "-" if x is None or not math.isfinite(x) else f"{100.0 * x:.0f}%"
 
 
+STATUS_WIDTH = 78  # 80 columns less the padding
+# where no loads reproduce their own K (the state flips with K) the onset rule of MODEL §5 decided
+ONSET_WORDS = "onset rule: no steady K"
+
+
+def doing_line(doing: str, belly: bool, onset: bool, width: int = STATUS_WIDTH) -> str:
+    """What the rig does here, as one sentence of at most `width` characters.
+
+    Where it does not fit, the state's "(faster here)" / "(dragged)" go first, then the belly's
+    clause (its clearance is on the line above)."""
+    plain = doing.replace(" (faster here)", "").replace(" (dragged)", "")
+    tries = [(w, b) for b in ((True, False) if belly else (False,)) for w in (doing, plain)]
+    for words, with_belly in tries:
+        parts = [words] + (["the belly touches"] if with_belly else []) + ([ONSET_WORDS] if onset else [])
+        line = "; ".join(parts)
+        line = f"{line[0].upper()}{line[1:]}."
+        if len(line) <= width:
+            return line
+    return line[: width - 3] + "..."
+
+
 def status_text(walk: CourseWalk, i: int, ascii_only: bool = False) -> str:
     """Five short lines: where, loads, grip and path ratio, what the rig does here, the next event."""
     p, t = walk.pose, walk.traction
@@ -211,8 +232,7 @@ def status_text(walk: CourseWalk, i: int, ascii_only: bool = False) -> str:
     lifted = walk.lifted[i]
     fast = walk.overdriven_here[i]
     doing = f"the {lifted} is off the ground: the rig tips over" if lifted else state_words(int(t.state[i]), fast)
-    if walk.belly_touch[i]:
-        doing += "; the belly touches"
+    onset = walk.no_fixed_point is not None and bool(walk.no_fixed_point[i])
     ahead = next((e for e in walk.events if e.index > i), None)
     nxt = f"Next (n): {EVENT_WORDS[ahead.kind]} at {ahead.rear_x_mm:.0f} mm" if ahead else "No more events ahead"
     faster = f"{fast} overdriven" if fast else "no mismatch"
@@ -228,7 +248,7 @@ def status_text(walk: CourseWalk, i: int, ascii_only: bool = False) -> str:
         f"Normal F {_num(walk.front_normal_g[i])} R {_num(walk.rear_normal_g[i])} g; tyre force "
         f"F {_num(t.front_force_g[i])} R {_num(t.rear_force_g[i])} g; belly {_num(p.belly_clearance_mm[i], 0, ' mm')}",
         grip,
-        f"{doing[0].upper()}{doing[1:]}.",
+        doing_line(doing, bool(walk.belly_touch[i]), onset),
         f"{nxt}  [{i + 1}/{len(walk)}]",
     ))
 

@@ -63,6 +63,7 @@ def walk_dict(w: CourseWalk) -> dict:
     """The walk as plain JSON-ready data."""
     p, t = w.pose, w.traction
     lifted, slipping, fast, in_v = w.lifted, w.slipping, w.overdriven_here, w.in_v
+    flagged = _no_fixed_point(w)
     rows = []
     for i in range(len(w)):
         rows.append({
@@ -70,7 +71,7 @@ def walk_dict(w: CourseWalk) -> dict:
             "pitch_deg": _num(p.pitch_deg[i], 4), "front_angle_deg": _num(p.front_angle_deg[i], 4),
             "rear_angle_deg": _num(p.rear_angle_deg[i], 4),
             "path_ratio": _num(p.path_ratio[i], 5), "speed_ratio": _num(w.speed_ratio[i], 5),
-            "overdriven_here": fast[i],
+            "no_fixed_point": bool(flagged[i]), "overdriven_here": fast[i],
             "front_normal_g": _num(w.front_normal_g[i]), "rear_normal_g": _num(w.rear_normal_g[i]),
             "front_force_g": _num(t.front_force_g[i]), "rear_force_g": _num(t.rear_force_g[i]),
             "front_grip_used": _num(t.front_grip_used[i], 4), "rear_grip_used": _num(t.rear_grip_used[i], 4),
@@ -89,10 +90,18 @@ def walk_dict(w: CourseWalk) -> dict:
         "slip_stiffness": [_stiffness_json(c) for c in _tyre_keys(s)[2]],
         "accel_g": s.terrain.accel_g,
         "step_mm": w.step_mm,
+        "no_fixed_point_count": int(flagged.sum()),
         "positions": rows,
         "events": [{"kind": e.kind, "index": e.index, "rear_x_mm": _num(e.rear_x_mm),
                     "front_x_mm": _num(e.front_x_mm), "text": e.text} for e in w.events],
     }
+
+
+def _no_fixed_point(w: CourseWalk) -> np.ndarray:
+    """Per position: no loads reproduce their own K, the state decided at the onset (MODEL §5)."""
+    if w.no_fixed_point is None:
+        return np.zeros(len(w), dtype=bool)
+    return np.asarray(w.no_fixed_point, dtype=bool)
 
 
 def _stiffness_json(c):
@@ -167,6 +176,10 @@ def walk_text(w: CourseWalk) -> str:
     n_out = int((t.state == OUTSIDE).sum())
     if n_out:
         out.append(f"  ({n_out} positions outside the model: a tyre in a V; check by hand)")
+    n_onset = int(_no_fixed_point(w).sum())
+    if n_onset:
+        out.append(f"  ({n_onset} position{'s' if n_onset > 1 else ''} decided at the onset: no steady K there, "
+                   "the state flips with K)")
     out.append("")
     out.append("Table (* an event; angles: ground under each tyre; path: path ratio;")
     out.append("F: tyre force, + forward; states as in --help):")
