@@ -207,6 +207,16 @@ MUTANTS = (
       "return np.where(inside, 1.0 + sigma, np.nan)", "s = 1 + σ in the course statics"),
     M("CS03", "contact_statics.py", "return 100.0 * sigma / (1.0 - sigma)", "return 100.0 * sigma",
       "reported slip σ instead of κ"),
+    # --- course_loads: K under load along a walk, decided at the onset (MODEL §4, §5) ------------
+    M("CL01", "course_loads.py", "keep = ~flagged  # the onset's solve stands",
+      "keep = flagged | ~flagged  # the onset's solve stands",
+      "wrong branch: the last pass's state where no loads reproduce their K, not the onset's"),
+    M("CL02", "course_loads.py", "k_o, q_o = speed(o[gr], i)", "k_o, q_o = speed(x[gr], i)",
+      "wrong branch: K from the loads after letting go, not the gripping solution's"),
+    M("CL03", "course_loads.py", "return gear * d_f / d_r, (gear - 1.0) * (d_f / 2.0) * rate[at]",
+      "return gear * d_f / d_r, (gear - 1.0) * (d_r / 2.0) * rate[at]", "per-axle swap: pitch term radius"),
+    M("CL04", "course_loads.py", "_K_REL = 1e-11", "_K_REL = 1e-6",
+      "wrong constant: K settled long before it reproduces its loads"),
 )
 
 EQUIVALENT = {

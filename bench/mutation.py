@@ -39,6 +39,7 @@ TEST_FILES = (
     "tests/test_tyre_slip.py",
     "tests/test_slope_slip.py",
     "tests/test_course_walk.py",
+    "tests/test_course_speed_ratio.py",
     "tests/test_traction_reference.py",
     "tests/test_traction_published.py",
     "tests/test_report_reference.py",
