@@ -24,7 +24,7 @@ import numpy as np
 from .contact_statics import ContactLoads, CourseTraction, solve_contacts
 from .traction import NONE
 
-_K_PASSES = 16  # passes on the gripping branch at most (most positions settle in 2-6)
+_K_PASSES = 24  # passes on the gripping branch at most (most settle in 2-6; very stiff tyres may need 20)
 _K_PASSES_PLAIN = 8  # with no gripping solution the loads jump with K: a 2-cycle stops here, as it always did
 _K_TOL = 1e-9  # share of the weight: one more pass would move the loads less than this
 _K_REL = 1e-11  # K reproduces its own loads to this share
@@ -51,14 +51,13 @@ def solve_loads(setup, rig, gear, pose, keys):
 
     1. The gripping branch. ``G(K)`` is the gripping solution of the statics at K (the root of the
        force balance, each tyre on its brush curve and at most ``±μ_s N``, before any axle lets
-       go); its loads change continuously with K. ``g(K) = K(G(K)) − K = 0`` is solved for the
-       scalar K: a plain pass first (``K_1 = K(G(K_0))`` from the level loads, as a plain
-       iteration would), then secant steps (Aitken's Δ² in K [2]_) until ``g`` changes sign, then
-       the secant inside that bracket, false position with the Illinois safeguard [3]_ where it
-       would leave it. The pitch term of a pass is taken at the loads the branch is expected to
-       have at its K (linear from the last two passes). Converged when K and the pitch term
-       reproduce the loads to ``_K_REL`` and one more plain pass would move them less than
-       ``_K_TOL`` of the weight.
+       go); its loads change continuously with K. ``g(K) = K(G(K)) − K = 0`` is solved as one
+       scalar root per position (`_RootFind`, in K plus the pitch term, which the statics follow):
+       a plain pass first (``K_1 = K(G(K_0))`` from the level loads, as a plain iteration would),
+       then secant steps (Aitken's Δ² [2]_) until ``g`` changes sign, then the secant inside that
+       bracket, false position with the Illinois safeguard [3]_ where it would leave it. Converged
+       when K and the pitch term reproduce the loads to ``_K_REL`` and one more plain pass would
+       move them less than ``_K_TOL`` of the weight.
     2. No axle saturates there: "both grip", with those loads and K, a fixed point of the whole
        statics. Where an axle that had already let go would also stay let go (a second
        self-consistent answer), that answer is the persistence band's, not the onset's.
@@ -74,10 +73,10 @@ def solve_loads(setup, rig, gear, pose, keys):
     decide it) is left at pass ``_K_PASSES_PLAIN``, as before.
 
     On a uniform slope the loads do not depend on the tyre forces: step 1 ends after its plain pass,
-    and steps 2 and 3 give the uniform-slope solve at the K of the grade loads. Where only one
-    answer reproduces its own K and it lets an axle go, the gripping solution saturates an axle at
-    its own K, and step 3 gives the state found there; where that is the same state, it is that
-    answer. Where `g` has several roots the bracket finds one of them.
+    and steps 2 and 3 give the uniform-slope solve at the K of the grade loads. Where the only answer
+    that reproduces its own K lets an axle go, the gripping solution saturates an axle at its own K
+    (else "both grip" would be a second answer), and step 3 lets that axle go: the same answer
+    wherever it is the same axle. Where ``g`` has several roots the bracket finds one of them.
 
     Parameters
     ----------
@@ -160,15 +159,16 @@ def solve_loads(setup, rig, gear, pose, keys):
         if gr.any():
             i = at[gr]
             k_o, q_o = speed(o[gr], i)
-            settled, k_step, n_pred = root.step(i, k_now[gr], q_now[gr], k_o, q_o, o[gr], tol, k_min, k_max)
+            settled, e_step, n_pred = root.step(i, k_now[gr] + q_now[gr], q_now[gr], k_o + q_o, q_o, o[gr], tol)
             # 2. nothing saturates at the fixed point: both grip; 3. an axle saturates: it lets go
             state_g = state[gr]
             # (where the loads it left give this K again, as on a uniform slope, this solve is the fixed point)
             again = np.abs(k_x[gr] - k_now[gr]) + np.abs(q_x[gr] - q_now[gr]) <= _K_REL * k_now[gr]
             m[gr] = np.where(settled, np.where((state_g == NONE) | again, _DONE, _LET_GO), _GRIP)
             onset_state[i] = np.where(settled, state_g, -1)
-            k_new[gr] = np.where(settled, k_new[gr], k_step)
-            q_new[gr] = np.where(settled, q_new[gr], speed(n_pred, i)[1])
+            q_step = speed(n_pred, i)[1]
+            k_new[gr] = np.where(settled, k_new[gr], np.clip(e_step - q_step, k_min, k_max))
+            q_new[gr] = np.where(settled, q_new[gr], q_step)
         # 3. solved again at the K of the loads it left: the same state, or no fixed point
         let_go = was == _LET_GO
         same = (state == onset_state[at]) & (np.max(np.abs(x - y[at]), axis=-1) <= tol)
@@ -198,42 +198,48 @@ def solve_loads(setup, rig, gear, pose, keys):
 
 
 class _RootFind:
-    """A safeguarded root find of ``g(K)`` for many positions at once, one step per pass.
+    """A safeguarded root find of ``g(e) = e(G(e)) − e`` for many positions at once, one step a pass.
 
-    Until ``g`` changes sign: a plain step ``K + g`` first (the fixed-point pass), then the secant
-    through the last two points (Aitken's Δ² in K [2]_) when it heads where ``g`` points, between one
-    and ``_STEP_MAX`` plain steps long (the fixed point may attract slowly; where it repels the step
-    doubles). Once ``g`` has changed sign: the secant while it stays inside the bracket, else false
-    position with the end kept twice running halved (Illinois [3]_). The pitch term of the next pass
-    is taken at the loads the branch is expected to have there (linear in K from the last two
-    passes), so the points of one bracket agree on it to second order.
+    ``e = K + (g − 1) r_f dφ/ds_r`` is the driveline's speed ratio with the pitch term (``ρ`` times
+    the mismatch): the statics depend on K and the pitch term almost only through it (they enter as
+    ``K s_r + q`` with ``s_r`` within a few percent of 1), so points at different pitch terms agree.
+    Until ``g`` changes sign: a plain step ``e + g`` first (the fixed-point pass), then the secant
+    through the last two points (Aitken's Δ² [2]_) when it heads where ``g`` points, between one
+    and ``_STEP_MAX`` plain steps long (the fixed point may attract slowly; where it repels the
+    step doubles). Once ``g`` has changed sign: the secant while it stays inside the bracket, else
+    false position with the end kept twice running halved (Illinois [3]_). The pitch term of the
+    next pass is taken at the loads expected there (linear from the last two passes).
     """
 
     def __init__(self, count):
-        self.k = np.full(count, np.nan)  # K, g and the loads of the last pass
+        self.e = np.full(count, np.nan)  # e, g, pitch term and loads of the last pass
         self.g = np.full(count, np.nan)
         self.q = np.full(count, np.nan)
         self.n = np.full((count, 2), np.nan)
-        self.lo = np.full((count, 2), np.nan)  # (K, g) with g > 0
-        self.hi = np.full((count, 2), np.nan)  # (K, g) with g < 0
+        self.lo = np.full((count, 2), np.nan)  # (e, g) with g > 0
+        self.hi = np.full((count, 2), np.nan)  # (e, g) with g < 0
         self.side = np.zeros(count, dtype=int)  # the end replaced last: +1 lo, −1 hi
         self.passes = np.zeros(count, dtype=int)
 
-    def step(self, at, k, q, k_o, q_o, n, tol, k_min, k_max):
-        """(settled, the next K, the loads expected there) after a pass at `k`, `q` gave loads `n`.
+    def step(self, at, e, q, e_o, q_o, n, tol):
+        """(settled, the next e, the loads expected there) after a pass at `e` (pitch term `q`)
+        gave the loads `n`, whose own e and pitch term are `e_o`, `q_o`.
 
-        Settled when K reproduces its loads (``K(n)`` and the pitch term at `n` within ``_K_REL``)
-        and one more plain pass would move the loads less than `tol`, or at ``_K_PASSES``.
+        Settled when K and the pitch term reproduce the loads to ``_K_REL`` and one more plain pass
+        would move them less than `tol`, or at ``_K_PASSES``.
         """
-        g = k_o - k
+        g = e_o - e
         self.passes[at] += 1
-        k_prev, g_prev, q_prev, n_prev = self.k[at], self.g[at], self.q[at], self.n[at]
+        e_prev, g_prev, q_prev, n_prev = self.e[at], self.g[at], self.q[at], self.n[at]
         with np.errstate(divide="ignore", invalid="ignore"):
+            # (at the first pass there is no slope yet: settled only where the level loads give back
+            # their K, as on level ground, so the next pass would repeat this one)
             moved = np.max(np.abs(n - n_prev), axis=-1)
-            # |dN/dK| along the branch times the change of K (and pitch term) one more pass makes
-            ahead = np.where(moved > 0, moved / (np.abs(k - k_prev) + np.abs(q - q_prev)), 0.0)
+            # |dN/de| along the branch times the change one more plain pass makes
+            ahead = np.where(moved > 0, moved / (np.abs(e - e_prev) + np.abs(q - q_prev)), 0.0)
             ahead = ahead * (np.abs(g) + np.abs(q_o - q))
-            settled = (ahead <= tol) & (np.abs(g) + np.abs(q_o - q) <= _K_REL * k)
+            # g = (K(n) − K) + (q_o − q): both parts within _K_REL
+            settled = (ahead <= tol) & (np.abs(g) + 2.0 * np.abs(q_o - q) <= _K_REL * e)
         settled |= self.passes[at] >= _K_PASSES
 
         rising = g > 0
@@ -242,25 +248,28 @@ class _RootFind:
         stuck = bracketed & (self.side[at] == sign)
         self.hi[at[stuck & rising], 1] *= 0.5
         self.lo[at[stuck & ~rising], 1] *= 0.5
-        point = np.stack((k, g), axis=-1)
+        point = np.stack((e, g), axis=-1)
         self.lo[at[rising]], self.hi[at[~rising]] = point[rising], point[~rising]
         self.side[at] = sign
-        (k_lo, g_lo), (k_hi, g_hi) = self.lo[at].T, self.hi[at].T
-        bracketed = np.isfinite(k_lo) & np.isfinite(k_hi)
+        (e_lo, g_lo), (e_hi, g_hi) = self.lo[at].T, self.hi[at].T
+        bracketed = np.isfinite(e_lo) & np.isfinite(e_hi)
+        # a bracket shrunk to rounding without settling has an end that no longer holds: start afresh
+        lost = bracketed & (np.abs(e_hi - e_lo) <= 1e-14 * e)
+        self.lo[at[lost]], self.hi[at[lost]] = np.nan, np.nan
+        bracketed &= ~lost
         with np.errstate(divide="ignore", invalid="ignore"):
-            false_position = (k_lo * g_hi - k_hi * g_lo) / (g_hi - g_lo)
-            secant = k - g * (k - k_prev) / (g - g_prev)
-            inside = (secant - k_lo) * (secant - k_hi) < 0
-            toward = np.isfinite(secant) & ((secant - k) * g > 0)
-            size = np.where(toward, np.abs(secant - k), 2.0 * np.abs(k - k_prev))
+            false_position = (e_lo * g_hi - e_hi * g_lo) / (g_hi - g_lo)
+            secant = e - g * (e - e_prev) / (g - g_prev)
+            inside = (secant - e_lo) * (secant - e_hi) < 0
+            toward = np.isfinite(secant) & ((secant - e) * g > 0)
+            size = np.where(toward, np.abs(secant - e), 2.0 * np.abs(e - e_prev))
             size = np.clip(np.nan_to_num(size), np.abs(g), _STEP_MAX * np.abs(g))
-            outward = np.where(np.isfinite(k_prev), k + sign * size, k + g)
-            k_next = np.where(bracketed, np.where(inside, secant, false_position), np.clip(outward, k_min, k_max))
-            # the loads expected at the next K, for its pitch term
-            n_pred = n + (n - n_prev) * ((k_next - k) / (k - k_prev))[:, None]
+            outward = np.where(np.isfinite(e_prev), e + sign * size, e + g)
+            e_next = np.where(bracketed, np.where(inside, secant, false_position), outward)
+            n_pred = n + (n - n_prev) * ((e_next - e) / (e - e_prev))[:, None]
         n_pred = np.where(np.isfinite(n_pred), n_pred, n)
-        self.k[at], self.g[at], self.q[at], self.n[at] = k, g, q, n
-        return settled, k_next, n_pred
+        self.e[at], self.g[at], self.q[at], self.n[at] = e, g, q, n
+        return settled, e_next, n_pred
 
 
 def _take(loads: ContactLoads, where) -> ContactLoads:
