@@ -217,6 +217,8 @@ MUTANTS = (
       "return gear * d_f / d_r, (gear - 1.0) * (d_r / 2.0) * rate[at]", "per-axle swap: pitch term radius"),
     M("CL04", "course_loads.py", "_K_REL = 1e-11", "_K_REL = 1e-6",
       "wrong constant: K settled long before it reproduces its loads"),
+    M("CL05", "course_loads.py", "(rear_to * np.sign(lam_r) >= 1.0)", "(rear_to * np.sign(lam_r) >= 0.0)",
+      "wrong constant: a saturated rear taken to stay saturated at any K on its side"),
 )
 
 EQUIVALENT = {

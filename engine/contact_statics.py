@@ -84,10 +84,12 @@ class ContactLoads:
     front_normal_g: np.ndarray  # [gf]
     rear_normal_g: np.ndarray
     traction: CourseTraction
-    # the normal forces at the gripping solution, before an axle lets go (the onset, MODEL §5);
-    # NaN where there is none (no root within the grip, binds); None from the rigid solve
+    # the normal forces at the gripping solution, before an axle lets go (the onset, MODEL §5),
+    # and the rear wheel's speed ratio s_r there; NaN where there is none (no root within the
+    # grip, binds); None from the rigid solve
     onset_front_normal_g: Optional[np.ndarray] = None
     onset_rear_normal_g: Optional[np.ndarray] = None
+    onset_rear_speed_ratio: Optional[np.ndarray] = None
 
 
 def _cross(a, b):
@@ -281,7 +283,7 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     s_r = np.clip(s_r, a, b)
     _, nf, nr, mf, mr, lam_f, lam_r = eval_at(s_r)
     pole = has_root & ~has_genuine
-    onset = np.where(has_genuine, nf, np.nan), np.where(has_genuine, nr, np.nan)
+    onset = tuple(np.where(has_genuine, v, np.nan) for v in (nf, nr, s_r))
 
     sat_f_, sat_r_ = np.abs(lam_f) >= 1.0, np.abs(lam_r) >= 1.0
     state = np.where(sat_f_ & sat_r_, BOTH, np.where(sat_f_, FRONT, np.where(sat_r_, REAR, NONE)))
@@ -354,7 +356,7 @@ def solve_contacts(weight_g, front_contact_mm, rear_contact_mm, cg_mm, front_ang
     return _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr, onset)
 
 
-def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr, onset=(None, None)) -> ContactLoads:
+def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr, onset=(None, None, None)) -> ContactLoads:
     """Grip used, and `lifted` over everything where a normal force is not positive."""
     state = np.asarray(state).astype(np.int8)
     lifted = ~((nf > 0) & (nr > 0))
@@ -379,5 +381,5 @@ def _finish(state, nf, nr, ff, fr, windup, reserve, slip_f, slip_r, msf, msr, on
             front_slip_pct=hide(slip_f), rear_slip_pct=hide(slip_r),
             front_grip_used=hide(used_f), rear_grip_used=hide(used_r),
         ),
-        onset_front_normal_g=onset[0], onset_rear_normal_g=onset[1],
+        onset_front_normal_g=onset[0], onset_rear_normal_g=onset[1], onset_rear_speed_ratio=onset[2],
     )

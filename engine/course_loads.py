@@ -19,9 +19,11 @@ References
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
-from .contact_statics import ContactLoads, CourseTraction, solve_contacts
+from .contact_statics import NEAR_RIGID, ContactLoads, CourseTraction, solve_contacts
 from .traction import NONE
 
 _K_PASSES = 24  # passes on the gripping branch at most (most settle in 2-6; very stiff tyres may need 20)
@@ -57,7 +59,8 @@ def solve_loads(setup, rig, gear, pose, keys):
        then secant steps (Aitken's Δ² [2]_) until ``g`` changes sign, then the secant inside that
        bracket, false position with the Illinois safeguard [3]_ where it would leave it. Converged
        when K and the pitch term reproduce the loads to ``_K_REL`` and one more plain pass would
-       move them less than ``_K_TOL`` of the weight.
+       move them less than ``_K_TOL`` of the weight; at once where one tyre is saturated at the
+       gripping solution and stays so at the K of its loads (``G`` does not move with K there).
     2. No axle saturates there: "both grip", with those loads and K, a fixed point of the whole
        statics. Where an axle that had already let go would also stay let go (a second
        self-consistent answer), that answer is the persistence band's, not the onset's.
@@ -160,6 +163,10 @@ def solve_loads(setup, rig, gear, pose, keys):
             i = at[gr]
             k_o, q_o = speed(o[gr], i)
             settled, e_step, n_pred = root.step(i, k_now[gr] + q_now[gr], q_now[gr], k_o + q_o, q_o, o[gr], tol)
+            # one tyre saturated at the gripping solution and still so at the K of its loads: there
+            # G does not move with K, so that K is the root (g = 0), and no pass is needed to find it
+            settled |= _stays_saturated(part.onset_rear_speed_ratio[gr], k_now[gr], q_now[gr], k_o, q_o,
+                                        rho[i], (c_f, c_r), (fs, rs))
             # 2. nothing saturates at the fixed point: both grip; 3. an axle saturates: it lets go
             state_g = state[gr]
             # (where the loads it left give this K again, as on a uniform slope, this solve is the fixed point)
@@ -195,6 +202,32 @@ def solve_loads(setup, rig, gear, pose, keys):
         mode[at] = m
     mismatch = np.where(outside, np.nan, (k_out + q_out) / rho)
     return loads, k_out, mismatch, outside, no_fixed_point
+
+
+def _stays_saturated(s_r, k, q, k_to, q_to, rho, stiffness, mu_static):
+    """Where exactly one tyre is saturated at the gripping solution (rear speed ratio `s_r` at K
+    `k`, pitch term `q`), whether it is still saturated the same way at `k_to`, `q_to`.
+
+    A saturated tyre carries ``±μ_s N`` whatever its slip, so the other tyre's slip, the root and the
+    loads stay where they are while it stays saturated: the front's ``s_f = (K s_r + q)/ρ`` moves
+    with K at a fixed ``s_r``, or the rear's ``s_r = (ρ s_f − q)/K`` at a fixed ``s_f``.
+    """
+    (c_f, c_r), (mu_f, mu_r) = stiffness, mu_static
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s_f = (k * s_r + q) / rho
+        lam_f, lam_r = _brush_lambda(s_f, c_f, mu_f), _brush_lambda(s_r, c_r, mu_r)
+        front_to = _brush_lambda((k_to * s_r + q_to) / rho, c_f, mu_f)
+        rear_to = _brush_lambda((rho * s_f - q_to) / k_to, c_r, mu_r)
+        front = (np.abs(lam_f) >= 1.0) & (np.abs(lam_r) < 1.0) & (front_to * np.sign(lam_f) >= 1.0)
+        rear = (np.abs(lam_r) >= 1.0) & (np.abs(lam_f) < 1.0) & (rear_to * np.sign(lam_r) >= 1.0)
+    return front | rear
+
+
+def _brush_lambda(s, stiffness, mu_s):
+    """``λ = c σ/(3 μ_s)``, ``σ = 1 − 1/s`` (Pacejka [1]_), as `engine.contact_statics` takes it. [-]"""
+    c = NEAR_RIGID if math.isinf(stiffness) else stiffness
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(s > 0, c * (1.0 - 1.0 / np.where(s > 0, s, 1.0)) / (3.0 * mu_s), -np.inf)
 
 
 class _RootFind:
