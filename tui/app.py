@@ -231,6 +231,8 @@ class SlopeTuneApp(FileActions, ScreenActions, FixActions, App[int]):
         if self._fits(first):
             self.flag.show(first.view.level, first.view.flag)
             self.status.view = first.view
+            if first.plot is not None:
+                self.chart.preset(first.chart, *first.plot)
             self.chart.show(first.chart)
             self._after_first_screen()
         else:
