@@ -156,3 +156,31 @@ def test_a_chart_drawn_by_the_child_shows_as_the_widget_would_draw_it(ascii_only
         assert child_builds == 0 and own_builds == 1
 
     asyncio.run(go())
+
+
+@needs_fork
+def test_a_first_screen_that_comes_after_the_first_frame_is_shown_from_the_childs_drawing(monkeypatch):
+    """When the child answers after the app has started, its chart and words are shown the moment
+    they arrive, drawn by the child (no plotext build here), and equal the app's own analysis."""
+    monkeypatch.setenv("SLOPETUNE_PREFETCH", "1")
+    loaded = load_setup(DEMO)
+    child = prefetch.start(loaded.setup, None, False, SIZE)
+    seen = {}
+    original = SlopeTuneApp._first_analysis
+
+    def spy(self):
+        seen.update(analysis=self.analysis, builds=self.chart.builds, data=self.chart.data)
+        original(self)
+
+    monkeypatch.setattr(SlopeTuneApp, "_first_analysis", spy)
+
+    async def go():
+        app = SlopeTuneApp(loaded, prefetch=child)
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause(0.5)
+            units = Units(imperial=False, ascii_only=False)
+            own = analyse(loaded.setup, slope_grid(False))
+            assert seen["analysis"] is None and seen["builds"] == 0  # shown before this process drew
+            assert seen["data"] == chart_data(own, units) and app.status.view == status_view(own, units)
+
+    asyncio.run(go())
