@@ -29,6 +29,20 @@ SIZE = (80, 24)
 needs_fork = pytest.mark.skipif(not hasattr(os, "fork"), reason="no fork here: the tuner starts without the child")
 
 
+def _watch_first_analysis(monkeypatch) -> dict:
+    """What the app showed when its own first analysis began (filled in at that moment)."""
+    seen: dict = {}
+    original = SlopeTuneApp._first_analysis
+
+    def spy(self):
+        seen.update(analysis=self.analysis, chart=self.chart.data, builds=self.chart.builds,
+                    level=self.flag.level, view=self.status.view)
+        original(self)
+
+    monkeypatch.setattr(SlopeTuneApp, "_first_analysis", spy)
+    return seen
+
+
 def test_reading_a_setup_and_the_childs_work_load_no_textual_and_no_numpy_before_the_fork():
     """The parent reads the file, parses its arguments and forks before any heavy import; the
     child's modules (chart data, status words) stay free of Textual."""
@@ -67,14 +81,7 @@ def test_first_frame_holds_the_chart_and_words_when_the_first_screen_is_given(mo
     units = Units(imperial=False, ascii_only=False)
     a = analyse(loaded.setup, slope_grid(False))
     first = prefetch.FirstScreen(loaded.setup, chart_data(a, units), status_view(a, units))
-    seen = {}
-    original = SlopeTuneApp._first_analysis
-
-    def spy(self):
-        seen.update(analysis=self.analysis, chart=self.chart.data, level=self.flag.level, view=self.status.view)
-        original(self)
-
-    monkeypatch.setattr(SlopeTuneApp, "_first_analysis", spy)
+    seen = _watch_first_analysis(monkeypatch)
 
     async def go():
         app = SlopeTuneApp(loaded, first_screen=first)
@@ -165,14 +172,7 @@ def test_a_first_screen_that_comes_after_the_first_frame_is_shown_from_the_child
     monkeypatch.setenv("SLOPETUNE_PREFETCH", "1")
     loaded = load_setup(DEMO)
     child = prefetch.start(loaded.setup, None, False, SIZE)
-    seen = {}
-    original = SlopeTuneApp._first_analysis
-
-    def spy(self):
-        seen.update(analysis=self.analysis, builds=self.chart.builds, data=self.chart.data)
-        original(self)
-
-    monkeypatch.setattr(SlopeTuneApp, "_first_analysis", spy)
+    seen = _watch_first_analysis(monkeypatch)
 
     async def go():
         app = SlopeTuneApp(loaded, prefetch=child)
@@ -181,6 +181,6 @@ def test_a_first_screen_that_comes_after_the_first_frame_is_shown_from_the_child
             units = Units(imperial=False, ascii_only=False)
             own = analyse(loaded.setup, slope_grid(False))
             assert seen["analysis"] is None and seen["builds"] == 0  # shown before this process drew
-            assert seen["data"] == chart_data(own, units) and app.status.view == status_view(own, units)
+            assert seen["chart"] == chart_data(own, units) and app.status.view == status_view(own, units)
 
     asyncio.run(go())
