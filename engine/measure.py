@@ -40,6 +40,10 @@ MU_STATIC_MAX = FIELDS["grip.mu_static"].hi
 AXLES = ("front", "rear")
 FACINGS = ("up", "down")
 # The setup key a slide angle gives: all four wheels on the board, or one axle alone.
+# An axle load below this share of the weight is no load: at the exact tip angle rounding leaves
+# ±1e-17 W on the lifting axle, which would read as a μ of 1e16 on one side of a mirror and as
+# "off the board" on the other.
+LOAD_FLOOR = 1e-9
 MU_KEYS = {"both": "grip.mu_static", "front": "grip.front_mu_static", "rear": "grip.rear_mu_static"}
 
 
@@ -202,7 +206,7 @@ def mu_one_axle_from_slide_angle(slide_angle_deg, wheelbase_mm, cg_from_rear_mm,
     with np.errstate(divide="ignore", invalid="ignore"):
         mu = np.sin(np.radians(alpha)) / n_axle
         ok = ((alpha > 0) & (alpha < 90) & (wheelbase > 0) & (h > 0) & (b > 0) & (b < wheelbase)
-              & (n_axle > 0) & (n_other > 0))
+              & (n_axle > LOAD_FLOOR) & (n_other > LOAD_FLOOR))
     out = np.where(ok, mu, np.nan)
     return float(out) if out.ndim == 0 else out
 

@@ -22,6 +22,29 @@ if str(ROOT) not in sys.path:
 from slopetune.engine import BallastItem, Driveline, Grip, Rig, Setup, Terrain  # noqa: E402
 from slopetune.engine.setup_model import cross_field_problems  # noqa: E402
 
+
+def _load_every_project_module() -> None:
+    """Import every module of the package before any test runs.
+
+    hypothesis mixes the literal constants of the project's loaded modules into the examples it
+    draws, so a derandomised run still drew other examples when a test ran after another one had
+    loaded a module lazily (a CI run found a rounding edge that a run in another order missed).
+    With every module loaded up front the examples are the same in every order.
+    """
+    import importlib
+    import pkgutil
+
+    import slopetune.engine
+    import slopetune.tui
+
+    for package in (slopetune.engine, slopetune.tui):
+        for info in pkgutil.walk_packages(package.__path__, package.__name__ + "."):
+            if not info.name.endswith("__main__"):
+                importlib.import_module(info.name)
+
+
+_load_every_project_module()
+
 settings.register_profile(
     "slopetune", max_examples=100, deadline=None, suppress_health_check=[HealthCheck.too_slow]
 )

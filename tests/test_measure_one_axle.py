@@ -391,3 +391,16 @@ def test_help_explains_the_one_axle_set_up(capsys):
     for words in ("low-friction sheet", "smooth plastic sheet on a glass pane", "Block the wheels",
                   "--facing up", "No default", "W sin(a) / N_axle", "ballast"):
         assert words in flat, words
+
+
+def test_exactly_at_the_tip_angle_every_case_is_refused_alike():
+    """b = h = L/2 at 45 deg: tan α = b/h, the uphill axle's load is exactly zero (Gillespie ch. 2
+    grade loads, worked by hand: b cos 45 − h sin 45 = 0). Rounding leaves ±1e-17 W there; no case
+    may read that as a μ of 1e16 while its mirror says the rig tips (found by hypothesis in CI)."""
+    for axle in ("front", "rear"):
+        for facing in ("up", "down"):
+            assert math.isnan(float(mu_one_axle_from_slide_angle(45.0, 300.0, 150.0, 150.0, axle, facing)))
+    # a hair below the tip the uphill-blocked front still reads, and high: L tan α/(b − h tan α)
+    tan_a = math.tan(math.radians(44.0))
+    assert float(mu_one_axle_from_slide_angle(44.0, 300.0, 150.0, 150.0, "front", "up")) == pytest.approx(
+        300.0 * tan_a / (150.0 - 150.0 * tan_a), rel=1e-12)
