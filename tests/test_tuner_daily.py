@@ -343,3 +343,22 @@ def test_help_from_the_tuner_lists_its_own_keys_undo_and_redo_included():
             assert "Save" in keys and "Quit" in keys and "palette" not in keys.lower()
 
     run(go())
+
+
+def test_fix_line_off_the_fall_line_says_its_target_is_the_straight_climb(tmp_path):
+    """On a heading the flag follows the heading but the planner's targets are the straight climb's
+    named angles (MODEL section 8 has no heading handover): the Fix line says so."""
+    text = DEMO.read_text(encoding="utf-8").replace("heading_deg = 0 ", "heading_deg = 20", 1)
+
+    async def go():
+        app = _app(_copy(tmp_path, text))
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            assert app.flag.level == "warn" and app.setup.terrain.heading_deg == 20.0
+            for _ in range(40):
+                await pilot.pause(0.1)
+                if app.status.fixes:
+                    break
+            assert app.status.fixes.startswith("Fix (f, for a straight climb): ")
+
+    run(go())

@@ -55,6 +55,9 @@ class FixActions:
         else:
             t = found.target
             words = f"Fix (f): no one change reaches {t.angle} {t.op} {t.value_deg:g}"
+        if words and setup.terrain.heading_deg % 360.0 != 0.0:
+            # the planner's targets are the straight climb's angles: say so off the fall line
+            words = words.replace("Fix (f): ", "Fix (f, for a straight climb): ", 1)
         self.status.fixes = words
 
     def action_fix(self) -> None:
