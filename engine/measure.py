@@ -140,11 +140,20 @@ def mu_from_slide_angle(slide_angle_deg):
     return np.tan(np.radians(np.asarray(slide_angle_deg, dtype=float)))
 
 
+def _check_facing(facing: str) -> None:
+    if facing not in FACINGS:
+        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+
+
 def _one_axle_case(axle: str, facing: str) -> None:
     if axle not in AXLES:
         raise ValueError(f"axle must be one of {', '.join(AXLES)}, not {axle!r}")
-    if facing not in FACINGS:
-        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+    _check_facing(facing)
+
+
+def _is_rig(wheelbase, b, h):
+    """Where ``L``, ``b``, ``h`` describe a rig: ``L`` and ``h`` above 0, ``b`` inside (0, L)."""
+    return (wheelbase > 0) & (h > 0) & (b > 0) & (b < wheelbase)
 
 
 def mu_one_axle_from_slide_angle(slide_angle_deg, wheelbase_mm, cg_from_rear_mm, cg_height_mm, axle, facing):
@@ -205,7 +214,7 @@ def mu_one_axle_from_slide_angle(slide_angle_deg, wheelbase_mm, cg_from_rear_mm,
     n_axle, n_other = (front, rear) if axle == "front" else (rear, front)
     with np.errstate(divide="ignore", invalid="ignore"):
         mu = np.sin(np.radians(alpha)) / n_axle
-        ok = ((alpha > 0) & (alpha < 90) & (wheelbase > 0) & (h > 0) & (b > 0) & (b < wheelbase)
+        ok = ((alpha > 0) & (alpha < 90) & _is_rig(wheelbase, b, h)
               & (n_axle > LOAD_FLOOR) & (n_other > LOAD_FLOOR))
     out = np.where(ok, mu, np.nan)
     return float(out) if out.ndim == 0 else out
@@ -294,14 +303,13 @@ def blocked_tip_angle_deg(wheelbase_mm, cg_from_rear_mm, cg_height_mm, facing):
     ``b/h`` facing up and ``(L − b)/h`` facing down, so a front-heavy rig (``b > L/2``) reads
     grippy tyres best facing up.
     """
-    if facing not in FACINGS:
-        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+    _check_facing(facing)
     wheelbase = np.asarray(wheelbase_mm, dtype=float)
     b = np.asarray(cg_from_rear_mm, dtype=float)
     h = np.asarray(cg_height_mm, dtype=float)
     lever = b if facing == "up" else wheelbase - b
     with np.errstate(invalid="ignore"):
-        ok = (wheelbase > 0) & (h > 0) & (b > 0) & (b < wheelbase)
+        ok = _is_rig(wheelbase, b, h)
         out = np.where(ok, np.degrees(np.arctan2(lever, h)), np.nan)
     return float(out) if out.ndim == 0 else out
 
@@ -426,10 +434,10 @@ def slide_angle_checks(slide_angle_deg: float, mu_max: float = MU_STATIC_MAX, *,
         return []
     if axle != "both":
         _one_axle_case(axle, facing or "")
-    elif facing is not None and facing not in FACINGS:
-        raise ValueError(f"facing must be one of {', '.join(FACINGS)}, not {facing!r}")
+    elif facing is not None:
+        _check_facing(facing)
     wb, b, h = (float("nan") if v is None else float(v) for v in rig)
-    if not (wb > 0 and h > 0 and 0 < b < wb):
+    if not _is_rig(wb, b, h):
         return [ReadingCheck("rig", None, True,
                              f"wheelbase {_g(wb)} mm, CG {_g(b)} mm ahead of the rear axle and {_g(h)} mm high: "
                              "needs a wheelbase and CG height above 0 and the CG between the axles")]

@@ -17,6 +17,8 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
+from board_rigs import board_rigs
+
 from slopetune.engine import load_setup
 from slopetune.engine.measure import (
     MU_STATIC_MAX, mu_from_slide_angle, mu_one_axle_from_slide_angle, one_axle_top_angle_deg, slide_angle_checks,
@@ -149,12 +151,7 @@ def sympy_case(axle: str, facing: str):
             sp.lambdify(args, other, "math"))
 
 
-rigs = st.tuples(
-    st.floats(300.0, 8000.0),  # W [g]
-    st.floats(120.0, 600.0),  # L [mm]
-    st.floats(0.1, 0.9),  # front bias share
-    st.floats(0.08, 0.8),  # h / L
-)
+rigs = board_rigs
 
 
 @settings(max_examples=examples(300))

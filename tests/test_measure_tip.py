@@ -16,6 +16,8 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
+from board_rigs import board_rigs
+
 from slopetune.engine.measure import (
     MU_STATIC_MAX, blocked_tip_angle_deg, both_axles_top_angle_deg, slide_angle_checks,
 )
@@ -126,12 +128,7 @@ def sympy_blocked(facing: str):
     return sp.lambdify(args, sol[mu], "math"), sp.lambdify(args, uphill, "math")
 
 
-rigs = st.tuples(
-    st.floats(300.0, 8000.0),  # W [g]
-    st.floats(120.0, 600.0),  # L [mm]
-    st.floats(0.1, 0.9),  # front bias share
-    st.floats(0.08, 0.8),  # h / L
-)
+rigs = board_rigs
 
 
 @settings(max_examples=examples(200))
