@@ -83,13 +83,14 @@ class FileActions:
 
     def _walk_course_file(self, path: Path) -> bool:
         """Open the course view on `path` with the open rig when it is a course file; False if not."""
-        from slopetune.engine.course_file import load_course, looks_like_course
+        from slopetune.engine.course_file import looks_like_course, parse_course
         from slopetune.engine.setup_file import read_setup_text
 
         try:
-            if not looks_like_course(read_setup_text(path)[0]):
+            text = read_setup_text(path)[0]  # read once: the test and the parse share it
+            if not looks_like_course(text):
                 return False
-            course = load_course(path).course
+            course = parse_course(text, str(path))[0]
         except SetupError as exc:
             self._note(str(exc), "error")
             return True

@@ -48,17 +48,7 @@ class FixActions:
             self.status.fixes = f"Fix: the planner failed ({type(found).__name__}); p opens it by hand"
             return
         self.fixes, self._fixes_setup = found, setup
-        if found is None:
-            words = ""
-        elif found.fixes:
-            words = found.line(self.ascii_only)
-        else:
-            t = found.target
-            words = f"Fix (f): no one change reaches {t.angle} {t.op} {t.value_deg:g}"
-        if words and setup.terrain.heading_deg % 360.0 != 0.0:
-            # the planner's targets are the straight climb's angles: say so off the fall line
-            words = words.replace("Fix (f): ", "Fix (f, for a straight climb): ", 1)
-        self.status.fixes = words
+        self.status.fixes = "" if found is None else found.line(self.ascii_only)
 
     def action_fix(self) -> None:
         """Open the planner with the suggested fix's target and lever."""

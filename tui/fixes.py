@@ -17,7 +17,7 @@ from typing import NamedTuple, Optional
 
 from slopetune.engine import Analysis, Setup
 
-from .status_words import LOOKAHEAD_DEG, flag_line, look_at
+from .status_words import LOOKAHEAD_DEG, off_straight, flag_line, look_at
 from .units import Units
 
 MARGIN_DEG = 1.0  # past the look-ahead (slip) or the slope (lift, grip): clear of the boundary
@@ -33,13 +33,18 @@ class Fixes(NamedTuple):
     target: object  # engine.goal_seek.Target the fixes reach
     fixes: tuple[Fix, ...]
     place: tuple[float, float]  # (x, z) of the added ballast at the front axle [mm]
+    # the setup runs on a heading: the flag follows it, the target is the straight climb's angle
+    # (the planner has no heading targets), and the line says so
+    straight_climb: bool = False
 
     def line(self, ascii_only: bool = False) -> str:
-        """One line for the status pane; "" when there is nothing to fix."""
+        """One line for the status pane: the fixes, or that no one change reaches the target."""
+        head = "Fix (f, for a straight climb): " if self.straight_climb else "Fix (f): "
         if not self.fixes:
-            return ""
+            t = self.target
+            return f"{head}no one change reaches {t.angle} {t.op} {t.value_deg:g}"
         sep = "; " if ascii_only else " \u00b7 "
-        return "Fix (f): " + sep.join(f.words for f in self.fixes)
+        return head + sep.join(f.words for f in self.fixes)
 
 
 def target_for(analysis: Analysis):
@@ -110,4 +115,4 @@ def fixes_for(setup: Setup, analysis: Analysis, units: Units) -> Optional[Fixes]
             found.append(Fix("overdrive", f"gears for {even:.1f} % overdrive (no wind-up)", lever.apply(setup, even)))
         else:
             found.append(Fix("overdrive", f"overdrive {even:.1f} % (no wind-up)", lever.apply(setup, even)))
-    return Fixes(target, tuple(found), place)
+    return Fixes(target, tuple(found), place, straight_climb=off_straight(analysis))

@@ -50,8 +50,9 @@ def _folder_words(folder: Path) -> str:
     return "the current folder" if shown == "." else shown
 
 
-def _describe(path: Path) -> tuple[Optional[str], Optional[str]]:
-    """(setup name, None) when the file loads as a setup, else (None, one-line problem)."""
+def _describe(path: Path) -> tuple[Optional[str], Optional[str], bool]:
+    """(setup name, None, False) when the file loads as a setup, (course name + " (course)", None,
+    True) for a good course file, else (None, one-line problem, False)."""
     # Imported here: the engine pulls in numpy, which the list must not wait for at push time.
     from slopetune.engine import SetupError, load_setup
 
@@ -60,15 +61,15 @@ def _describe(path: Path) -> tuple[Optional[str], Optional[str]]:
     except SetupError as exc:
         course = _course_name(path)
         if course is not None:
-            return f"{course} (course)", None
+            return f"{course} (course)", None, True
         where = f"line {exc.line}: " if exc.line is not None else ""
-        return None, where + exc.reason
+        return None, where + exc.reason, False
     except (OSError, UnicodeError, ValueError) as exc:
-        return None, " ".join(str(exc).split()) or type(exc).__name__
+        return None, " ".join(str(exc).split()) or type(exc).__name__, False
     except Exception as exc:  # a list of files must never take the tuner down
-        return None, f"cannot read: {type(exc).__name__}"
+        return None, f"cannot read: {type(exc).__name__}", False
     name = " ".join(str(loaded.setup.name).split())
-    return (name or path.stem), None
+    return (name or path.stem), None, False
 
 
 def _course_name(path: Path) -> Optional[str]:
@@ -126,9 +127,7 @@ def scan_setup_files(folders: list[Path]) -> tuple[list[SetupFileEntry], list[st
                 found.append(child)
     entries = []
     for path in found:
-        name, problem = _describe(path)
-        entries.append(SetupFileEntry(path, _shown(path), name, problem,
-                                      course=problem is None and name is not None and name.endswith(" (course)")))
+        entries.append(SetupFileEntry(path, _shown(path), *_describe(path)))
     entries.sort(key=lambda e: (e.problem is not None, e.course, e.shown_path))  # setups, courses, then the rest
     return entries, problems
 
