@@ -101,7 +101,7 @@ MUTANTS = (
       'n_axle, n_other = (rear, front) if axle == "front" else (front, rear)', "per-axle swap: one-axle load"),
     M("M09", "measure.py", "mu = np.sin(np.radians(alpha)) / n_axle", "mu = np.tan(np.radians(alpha)) / n_axle",
       "tan for sin: pull along the board"),
-    M("M10", "measure.py", "& (n_axle > 0) & (n_other > 0))", "& (n_axle > 0))",
+    M("M10", "measure.py", "& (n_axle > LOAD_FLOOR) & (n_other > LOAD_FLOOR))", "& (n_axle > LOAD_FLOOR))",
       "dropped term: the rig tips over the measured axle"),
     M("M11", "measure.py", "return math.degrees(math.atan(mu_max * d / (wheelbase + mu_max * h))), \"mu\"",
       "return math.degrees(math.atan(mu_max)), \"mu\"", "wrong constant: atan(mu_max) bound for one axle"),

@@ -247,3 +247,25 @@ def test_throttle_named_angles_sit_where_the_slip_states_change():
     assert m < a.angles_deg["max_grade"] - 5.0  # the punch costs grade
     assert state(m - 0.02) in ("none", "front", "rear") and state(m + 0.02) == "both"
     assert state(h - 0.02) != "front" and state(h + 0.02) == "front"
+
+
+def test_rigid_handover_of_a_rear_overdrive_sits_where_the_rear_rule_changes():
+    """Rigid limit with the REAR overdriven (gear overdrive -8 %) on a rear-heavy rig (40 % front):
+    the rear (fast) axle lets go first where μ_s,r N_r − μ_s,f N_f < F_req (MODEL section 5's rigid
+    rule), with N_f, N_r and F_req from the grade-load equations written out (Gillespie ch. 2) and
+    the crossing found by brentq. The left side starts above F_req on the flat and grows slower
+    than it, so the handover is an interior crossing (about 22 deg, worked with h/L ≈ 0.28)."""
+    from slopetune.engine import Driveline
+
+    s = _demo(crr=0.03)
+    s = replace(s, driveline=Driveline(overdrive_pct=-8.0)).with_value("rig.front_bias_pct", 40.0)
+    a = analyse(s)
+    assert a.overdrive.overdriven_axle == "rear"
+
+    def rear_rule(t):
+        _w, nf, nr, f = _grade(s, t)
+        return 1.0 * nr - 1.0 * nf - f
+
+    expected = brentq(rear_rule, 0.0, 40.0, xtol=1e-10)
+    assert 10.0 < expected < 35.0
+    assert a.angles_deg["handover"] == pytest.approx(expected, abs=0.01)
